@@ -1,0 +1,209 @@
+"""The physics of each unit operation as plain functions of states and numbers.
+
+All quantities are SI and specific: per kg of the stream that passes (J/kg, J/(kg K)),
+or, where flows of several streams meet, per kg of compressor flow.  Unit-operation
+objects (:mod:`cycle.equipment`) hold parameters and call these functions.
+"""
+
+from dataclasses import dataclass
+import math
+
+import numpy as np
+
+
+def compress_isothermal(fluid, inlet, p_out, T_out, efficiency, T0):
+    """Compression with heat rejection to the surroundings, rated by isothermal efficiency.
+
+    The reversible work from the inlet state to the outlet state ``(T_out, p_out)`` with
+    heat exchanged only with surroundings at ``T0`` is ``T0 (s_in - s_out) - (h_in - h_out)``;
+    with ``T_out = T_in = T0`` this is the textbook isothermal compression work.  The shaft
+    work is that divided by the isothermal efficiency.
+
+    Parameters
+    ----------
+    fluid : properties.Fluid
+    inlet : properties.State
+        Suction state.
+    p_out : float
+        Discharge pressure [Pa].
+    T_out : float
+        Discharge temperature [K] (the aftercooler temperature).
+    efficiency : float
+        Isothermal efficiency, 0 < efficiency <= 1 [-].
+    T0 : float
+        Temperature of the surroundings that take the heat [K].
+
+    Returns
+    -------
+    outlet : properties.State
+    work : float
+        Shaft work [J/kg of gas compressed].
+    heat_rejected : float
+        Heat rejected by the compressor [J/kg], ``work - (h_out - h_in)``.
+
+    References
+    ----------
+    R. F. Barron, *Cryogenic Systems*, 2nd ed., Oxford University Press, 1985, sec. 3.2
+    (reversible work of an isothermal compressor, and the isothermal efficiency).
+    """
+    outlet = fluid.state_tp(T_out, p_out)
+    reversible = T0 * (inlet.s - outlet.s) - (inlet.h - outlet.h)
+    work = reversible / efficiency
+    return outlet, work, work - (outlet.h - inlet.h)
+
+
+def compress_isentropic(fluid, inlet, p_out, efficiency):
+    """One adiabatic compression stage rated by isentropic efficiency.
+
+    ``h_out = h_in + (h_s - h_in) / efficiency`` with ``h_s`` at ``(p_out, s_in)``.
+
+    Returns
+    -------
+    outlet : properties.State
+    work : float
+        Shaft work [J/kg].
+    """
+    ideal = fluid.state_ps(p_out, inlet.s)
+    h_out = inlet.h + (ideal.h - inlet.h) / efficiency
+    outlet = fluid.state_ph(p_out, h_out)
+    return outlet, h_out - inlet.h
+
+
+def stage_pressures(p_in, p_out, stages):
+    """Discharge pressure of each stage for equal pressure ratios [Pa] (common practice)."""
+    ratio = (p_out / p_in) ** (1.0 / stages)
+    pressures = [p_in * ratio ** (k + 1) for k in range(stages)]
+    pressures[-1] = p_out
+    return pressures
+
+
+def cool(fluid, inlet, T_out, pressure_drop=0.0):
+    """Cool a stream to ``T_out`` [K] with a pressure drop [Pa]; return (outlet, duty [J/kg])."""
+    outlet = fluid.state_tp(T_out, inlet.p - pressure_drop)
+    return outlet, inlet.h - outlet.h
+
+
+def throttle(fluid, inlet, p_out):
+    """Adiabatic expansion through a valve: enthalpy is kept (Joule-Thomson expansion)."""
+    return fluid.state_ph(p_out, inlet.h)
+
+
+def mix(fluid, p, flows_and_enthalpies):
+    """Adiabatic mixing of streams at pressure ``p`` [Pa].
+
+    Parameters
+    ----------
+    flows_and_enthalpies : sequence of (float, float)
+        Mass flow (any consistent basis) and specific enthalpy [J/kg] of each stream.
+    """
+    total = sum(m for m, _ in flows_and_enthalpies)
+    h = sum(m * h for m, h in flows_and_enthalpies) / total
+    return fluid.state_ph(p, h)
+
+
+def separator_liquid_fraction(h_in, h_liquid, h_vapour, heat_in=0.0):
+    """Fraction of a two-phase inflow drawn off as saturated liquid.
+
+    Energy balance ``h_in + heat_in = x_l h_liquid + (1 - x_l) h_vapour``.
+
+    Parameters
+    ----------
+    h_in : float
+        Enthalpy of the inflow [J/kg].
+    h_liquid, h_vapour : float
+        Saturated liquid and vapour enthalpy at the separator pressure [J/kg].
+    heat_in : float
+        Heat leak into the separator per kg of inflow [J/kg].
+    """
+    return (h_vapour - h_in - heat_in) / (h_vapour - h_liquid)
+
+
+@dataclass(frozen=True)
+class ExchangerProfile:
+    """Temperatures of a two-stream counterflow exchanger at its zone boundaries.
+
+    Index 0 is the cold end (hot outlet, cold inlet); the last index is the warm end.
+
+    Attributes
+    ----------
+    duty : numpy.ndarray
+        Cumulative duty from the cold end [J/kg of compressor flow].
+    hot_T, cold_T : numpy.ndarray
+        Temperatures of the hot and cold streams [K].
+    hot_p, cold_p : numpy.ndarray
+        Pressures [Pa].
+    """
+
+    duty: np.ndarray
+    hot_T: np.ndarray
+    cold_T: np.ndarray
+    hot_p: np.ndarray
+    cold_p: np.ndarray
+
+    @property
+    def approach(self):
+        """Hot minus cold temperature at each zone boundary [K]."""
+        return self.hot_T - self.cold_T
+
+    @property
+    def min_approach(self):
+        """Smallest temperature difference between the streams [K] (the pinch)."""
+        return float(np.min(self.approach))
+
+    @property
+    def min_approach_index(self):
+        return int(np.argmin(self.approach))
+
+    def ua(self):
+        """Conductance per unit compressor flow, sum of zone duty over zone LMTD [W/K per kg/s].
+
+        Infinite where the streams touch or cross.
+        """
+        dT = self.approach
+        if np.any(dT <= 0):
+            return math.inf
+        a, b = dT[:-1], dT[1:]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            lmtd = np.where(np.isclose(a, b, rtol=1e-9, atol=0.0), 0.5 * (a + b), (a - b) / np.log(a / b))
+        return float(np.sum(np.diff(self.duty) / lmtd))
+
+
+def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out, cold_flow, duty, zones):
+    """March a counterflow exchanger in ``zones`` equal-duty zones.
+
+    Pressure falls on each side in proportion to the duty passed (a modelling choice:
+    pressure drop follows the heat transferred).
+
+    Parameters
+    ----------
+    fluid : properties.Fluid
+    hot_in : properties.State
+        Hot stream at its inlet (the warm end).
+    hot_p_out : float
+        Hot stream outlet pressure [Pa].
+    hot_flow, cold_flow : float
+        Mass flows on a common basis (per kg of compressor flow) [-].
+    cold_in : properties.State
+        Cold stream at its inlet (the cold end).
+    cold_p_out : float
+        Cold stream outlet pressure [Pa].
+    duty : float
+        Heat passed from hot to cold [J per kg of compressor flow].
+    zones : int
+        Number of equal-duty zones.
+
+    Returns
+    -------
+    ExchangerProfile
+    """
+    frac = np.linspace(0.0, 1.0, zones + 1)
+    q = duty * frac
+    h_hot = (hot_in.h - duty / hot_flow) + q / hot_flow
+    h_cold = cold_in.h + q / cold_flow
+    p_hot = hot_p_out + frac * (hot_in.p - hot_p_out)
+    p_cold = cold_in.p + frac * (cold_p_out - cold_in.p)
+    hot = fluid.states_ph(p_hot[:-1], h_hot[:-1])
+    cold = fluid.states_ph(p_cold[1:], h_cold[1:])
+    hot_T = np.array([st.T for st in hot] + [hot_in.T])
+    cold_T = np.array([cold_in.T] + [st.T for st in cold])
+    return ExchangerProfile(q, hot_T, cold_T, p_hot, p_cold)

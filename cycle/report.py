@@ -1,0 +1,102 @@
+"""Plain-text views of results, for people at a terminal."""
+
+
+def _line(label, value, unit="", fmt="{:.4g}"):
+    if value is None:
+        text = "-"
+    elif isinstance(value, str):
+        text = value
+    else:
+        text = fmt.format(value)
+    return f"  {label:<44s} {text:>12s} {unit}".rstrip()
+
+
+def format_result(result):
+    """The design point as readable text: headline numbers, sizing, solve and state table."""
+    sc = result.scenario
+    s = result.summary()
+    out = [f"lhsim design point: {sc.name or 'unnamed scenario'}",
+           f"  {sc.gas}, {sc.low_pressure / 1e5:g} -> {sc.high_pressure / 1e5:g} bar, "
+           f"ambient {sc.ambient_temperature:g} K, recuperator by {sc.recuperator.mode.replace('_', ' ')}",
+           "", "Performance"]
+    out += [
+        _line("liquid yield (liquid / compressor flow)", s["liquid_yield"], "", "{:.5f}"),
+        _line("work per kg compressed", s["work_kJ_per_kg_compressed"], "kJ/kg", "{:.1f}"),
+        _line("work per kg liquid", s["work_kJ_per_kg_liquid"], "kJ/kg", "{:.0f}"),
+        _line("ideal work of liquefaction", s["ideal_work_kJ_per_kg_liquid"], "kJ/kg", "{:.1f}"),
+        _line("figure of merit", s["figure_of_merit"], "", "{:.4f}"),
+        _line("throttle outlet temperature", s["throttle_outlet_temperature_K"], "K", "{:.2f}"),
+        _line("throttle outlet quality (vapour fraction)", s["throttle_outlet_quality"], "", "{:.4f}"),
+    ]
+    out += ["", "Recuperator"]
+    out += [
+        _line("effectiveness", s["recuperator_effectiveness"], "", "{:.4f}"),
+        _line("critical effectiveness (no liquid below)", s["recuperator_critical_effectiveness"], "", "{:.4f}"),
+        _line("minimum approach", s["recuperator_min_approach_K"], "K", "{:.2f}"),
+        _line("  at fraction of duty from cold end", s["recuperator_min_approach_position"], "", "{:.2f}"),
+        _line("warm-end / cold-end approach",
+              f"{s['recuperator_warm_end_approach_K']:.2f} / {s['recuperator_cold_end_approach_K']:.2f}", "K"),
+        _line("duty per kg compressed", s["recuperator_duty_kJ_per_kg_compressed"], "kJ/kg", "{:.2f}"),
+        _line("UA per unit compressor flow", s["recuperator_UA_W_per_K_per_kg_per_s"], "W/K per kg/s", "{:.0f}"),
+    ]
+    if "compressor_flow_kg_per_h" in s:
+        out += ["", "Production"]
+        out += [
+            _line("compressor flow", s["compressor_flow_kg_per_h"], "kg/h", "{:.2f}"),
+            _line("liquid rate", s["liquid_rate_kg_per_h"], "kg/h", "{:.3f}"),
+            _line("liquid rate (saturated liquid)", s["liquid_rate_L_per_h"], "L/h", "{:.3f}"),
+            _line("compressor power", s["compressor_power_kW"], "kW", "{:.3f}"),
+            _line("heat rejected (compressor and aftercooler)", s["heat_rejected_kW"], "kW", "{:.3f}"),
+            _line("recuperator duty", s["recuperator_duty_kW"], "kW", "{:.3f}"),
+            _line("recuperator UA", s["recuperator_UA_W_per_K"], "W/K", "{:.1f}"),
+            _line("cold-box heat leak", s["heat_leak_W"], "W", "{:.3g}"),
+        ]
+    sol = result.solve
+    out += ["", "Solve",
+            f"  recycle {'converged' if sol.converged else 'NOT converged'} in {sol.iterations} iterations "
+            f"({sol.function_calls} evaluations), residual {sol.residual:.2e} {sol.residual_unit}; "
+            f"energy balance residual {s['energy_balance_residual']:.1e} of the work"]
+    out += ["", "Streams (flow per kg of compressor flow)", _state_table(result)]
+    if result.warnings:
+        out += ["", "Warnings"] + [f"  - {w}" for w in result.warnings]
+    return "\n".join(out)
+
+
+def _state_table(result):
+    import pandas as pd
+
+    frame = pd.DataFrame(result.state_rows())
+    table = pd.DataFrame({
+        "#": frame["number"],
+        "stream": frame["stream"],
+        "T [K]": frame["temperature_K"].map("{:.2f}".format),
+        "p [bar]": frame["pressure_bar"].map("{:.4g}".format),
+        "h [kJ/kg]": frame["enthalpy_kJ_per_kg"].map("{:.2f}".format),
+        "s [kJ/kg K]": frame["entropy_kJ_per_kg_K"].map("{:.4f}".format),
+        "x [-]": frame["quality"].map(lambda q: "" if q is None or q != q else f"{q:.4f}"),
+        "flow [-]": frame["flow_per_kg_compressed"].map("{:.4f}".format),
+    })
+    if "mass_flow_kg_per_h" in frame:
+        table["flow [kg/h]"] = frame["mass_flow_kg_per_h"].map("{:.3f}".format)
+    return table.to_string(index=False)
+
+
+def format_gas(info):
+    """The ``lhsim gas`` report as readable text."""
+    inv = info["inversion_temperatures_K"]
+    inv_text = ", ".join(f"{t:.1f}" for t in inv) if inv else "none (above the maximum inversion pressure)"
+    sat = info["saturation_temperature_K"]
+    lines = [
+        f"{info['gas']} at {info['temperature_K']:g} K and {info['pressure_bar']:g} bar ({info['phase']})",
+        _line("density", info["density_kg_per_m3"], "kg/m3"),
+        _line("enthalpy (CoolProp reference state)", info["enthalpy_kJ_per_kg"], "kJ/kg", "{:.3f}"),
+        _line("entropy (CoolProp reference state)", info["entropy_kJ_per_kg_K"], "kJ/(kg K)", "{:.4f}"),
+        _line("Joule-Thomson coefficient (dT/dp)_h", info["jt_coefficient_K_per_bar"], "K/bar", "{:.4f}"),
+        _line("saturation temperature at this pressure",
+              sat if sat is not None else "none (supercritical)", "K" if sat is not None else "", "{:.3f}"),
+        f"  {'inversion temperatures at this pressure':<44s} {inv_text}{' K' if inv else ''}",
+        _line("maximum inversion temperature (p -> 0)", info["max_inversion_temperature_K"], "K", "{:.1f}"),
+        _line("critical point", f"{info['critical_temperature_K']:.3f} K, {info['critical_pressure_bar']:.3f} bar"),
+        _line("triple point", f"{info['triple_point_temperature_K']:.3f} K, {info['triple_point_pressure_bar']:.4g} bar"),
+    ]
+    return "\n".join(lines)

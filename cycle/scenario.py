@@ -1,0 +1,412 @@
+"""Scenario files: read, validate and convert to SI once, at the edge.
+
+A scenario is a YAML mapping (see ``docs/scenario-format.md``).  Quantities are strings
+with units (``"200 bar"``) or bare SI numbers.  Validation happens here, before any
+property call, and every problem is reported as a one-line :class:`ScenarioError` that
+names the key, what was expected and what was given.
+"""
+
+from dataclasses import dataclass, field, asdict
+import difflib
+from typing import Optional
+
+from cycle.errors import ScenarioError
+from cycle.units import UnitError, parse_quantity
+
+DEFAULT_AMBIENT_TEMPERATURE = 300.0  # K; the reference temperature of the textbook tables
+DEFAULT_ZONES = 50
+
+
+@dataclass(frozen=True)
+class CompressorSpec:
+    """Compressor parameters: isothermal efficiency, or stages with isentropic efficiency."""
+
+    isothermal_efficiency: Optional[float] = None
+    stages: int = 1
+    isentropic_efficiency: Optional[float] = None
+
+    @property
+    def model(self):
+        return "isothermal" if self.isothermal_efficiency is not None else "staged"
+
+
+@dataclass(frozen=True)
+class AftercoolerSpec:
+    """Aftercooler outlet temperature [K] and pressure drop [Pa]."""
+
+    outlet_temperature: float
+    pressure_drop: float = 0.0
+
+
+@dataclass(frozen=True)
+class RecuperatorSpec:
+    """Counterflow recuperator: exactly one of effectiveness [-], min_approach [K], ua [W/K]."""
+
+    effectiveness: Optional[float] = None
+    min_approach: Optional[float] = None
+    ua: Optional[float] = None
+    zones: int = DEFAULT_ZONES
+    high_side_pressure_drop: float = 0.0
+    low_side_pressure_drop: float = 0.0
+
+    @property
+    def mode(self):
+        for name in ("effectiveness", "min_approach", "ua"):
+            if getattr(self, name) is not None:
+                return name
+        raise AssertionError("recuperator spec without a sizing choice")
+
+
+@dataclass(frozen=True)
+class ProductionSpec:
+    """Production target: liquid mass rate [kg/s], liquid volume rate [m3/s] or compressor flow [kg/s]."""
+
+    liquid_mass_rate: Optional[float] = None
+    liquid_volume_rate: Optional[float] = None
+    compressor_flow: Optional[float] = None
+
+
+@dataclass(frozen=True)
+class Scenario:
+    """A validated scenario in SI units (K, Pa, W, kg/s)."""
+
+    gas: str
+    ambient_temperature: float
+    low_pressure: float
+    high_pressure: float
+    compressor: CompressorSpec
+    aftercooler: AftercoolerSpec
+    recuperator: RecuperatorSpec
+    heat_leak: float = 0.0
+    production: Optional[ProductionSpec] = None
+    name: str = ""
+    source: dict = field(default_factory=dict, compare=False, repr=False)
+
+    def to_dict(self):
+        """The scenario in SI numbers, defaults filled in, without the source mapping."""
+        out = asdict(self)
+        out.pop("source")
+        out["compressor"] = {k: v for k, v in out["compressor"].items() if v is not None}
+        out["recuperator"] = {k: v for k, v in out["recuperator"].items() if v is not None}
+        if out["production"] is not None:
+            out["production"] = {k: v for k, v in out["production"].items() if v is not None}
+        return out
+
+
+# -- schema -------------------------------------------------------------------------------
+
+# key -> kind; a kind is a dimension name for quantities, or one of
+# "text", "gas", "integer", "number", a dict (a nested section), or a tuple of dimensions.
+SCHEMA = {
+    "name": "text",
+    "gas": "gas",
+    "ambient_temperature": "temperature",
+    "low_pressure": "pressure",
+    "high_pressure": "pressure",
+    "compressor": {
+        "isothermal_efficiency": "number",
+        "stages": "integer",
+        "isentropic_efficiency": "number",
+    },
+    "aftercooler": {
+        "outlet_temperature": "temperature",
+        "pressure_drop": "pressure",
+    },
+    "recuperator": {
+        "effectiveness": "number",
+        "min_approach": "temperature_difference",
+        "ua": "thermal_conductance",
+        "zones": "integer",
+        "high_side_pressure_drop": "pressure",
+        "low_side_pressure_drop": "pressure",
+    },
+    "heat_leak": "power",
+    "production": {
+        "liquid_rate": ("mass_flow", "volume_flow"),
+        "compressor_flow": "mass_flow",
+    },
+}
+
+_EXAMPLES = {
+    "temperature": "'300 K'",
+    "pressure": "'200 bar'",
+    "power": "'5 W'",
+    "mass_flow": "'8 kg/h'",
+    "volume_flow": "'10 L/h'",
+    "temperature_difference": "'2 K'",
+    "thermal_conductance": "'500 W/K'",
+}
+
+
+def _all_keys(schema, prefix=""):
+    for key, kind in schema.items():
+        yield prefix + key
+        if isinstance(kind, dict):
+            yield from _all_keys(kind, prefix + key + ".")
+
+
+def _check_keys(data, schema, prefix=""):
+    if not isinstance(data, dict):
+        raise ScenarioError(f"{prefix.rstrip('.') or 'scenario'} must be a mapping of keys to values, "
+                            f"got {data!r}")
+    for key, value in data.items():
+        full = prefix + str(key)
+        if key not in schema:
+            candidates = list(_all_keys(schema, prefix)) if prefix else list(_all_keys(schema))
+            close = difflib.get_close_matches(full, candidates, n=1, cutoff=0.5)
+            hint = f"; did you mean {close[0]}?" if close else f"; valid keys here: {', '.join(schema)}"
+            raise ScenarioError(f"unknown key {full}{hint}")
+        if isinstance(schema[key], dict):
+            _check_keys(value if value is not None else {}, schema[key], full + ".")
+
+
+def _quantity(data, key, dimension, full):
+    value = data[key]
+    if value is None:
+        raise ScenarioError(f"{full} is empty: expected a {dimension.replace('_', ' ')} such as {_EXAMPLES[dimension]}")
+    try:
+        return parse_quantity(value, dimension)
+    except UnitError as err:
+        raise ScenarioError(f"{full}: {err}") from None
+
+
+def _number(data, key, full):
+    value = data[key]
+    if isinstance(value, bool) or not isinstance(value, (int, float, str)):
+        raise ScenarioError(f"{full} must be a number, got {value!r}")
+    try:
+        return parse_quantity(value, "dimensionless")
+    except UnitError as err:
+        raise ScenarioError(f"{full}: {err}") from None
+
+
+def _integer(data, key, full, low, high):
+    value = data[key]
+    if isinstance(value, bool) or not isinstance(value, int):
+        raise ScenarioError(f"{full} must be a whole number from {low} to {high}, got {value!r}")
+    if not low <= value <= high:
+        raise ScenarioError(f"{full} must be a whole number from {low} to {high}, got {value}")
+    return value
+
+
+def _require(data, key, full, what):
+    if key not in data or data[key] is None:
+        raise ScenarioError(f"missing {full}: expected {what}")
+
+
+def _between(value, full, low, high, low_open=True, high_open=False, given=None):
+    below = value <= low if low_open else value < low
+    above = value >= high if high_open else value > high
+    if below or above:
+        lo = "above" if low_open else "at least"
+        hi = "below" if high_open else "at most"
+        raise ScenarioError(f"{full} must be {lo} {low:g} and {hi} {high:g}, got {given if given is not None else value!r}")
+    return value
+
+
+def _exactly_one(data, names, section):
+    given = [n for n in names if data.get(n) is not None]
+    listed = ", ".join(f"{section}.{n}" for n in names[:-1]) + f" or {section}.{names[-1]}"
+    if len(given) > 1:
+        raise ScenarioError(f"give one of {listed}, not {' and '.join(section + '.' + g for g in given)}")
+    if not given:
+        raise ScenarioError(f"missing {section} sizing: give one of {listed}")
+    return given[0]
+
+
+def _bar(p):
+    return f"{p / 1e5:g} bar"
+
+
+def parse_scenario(data):
+    """Validate a scenario mapping (as read from YAML) and convert it to SI.
+
+    Parameters
+    ----------
+    data : dict
+        The scenario as given: quantities as strings with units or SI numbers.
+
+    Returns
+    -------
+    Scenario
+
+    Raises
+    ------
+    ScenarioError
+        On an unknown key, a missing value, a value of the wrong dimension, a non-physical
+        value or two options that exclude each other.
+    """
+    if not isinstance(data, dict):
+        raise ScenarioError(f"a scenario must be a mapping of keys to values, got {type(data).__name__}")
+    _check_keys(data, SCHEMA)
+
+    name = data.get("name") or ""
+    if not isinstance(name, str):
+        name = str(name)
+
+    _require(data, "gas", "gas", "a fluid name such as 'nitrogen'")
+    from properties.fluids import resolve_fluid_name
+
+    try:
+        gas = resolve_fluid_name(str(data["gas"]))
+    except ValueError as err:
+        raise ScenarioError(str(err)) from None
+
+    if data.get("ambient_temperature") is not None:
+        T0 = _quantity(data, "ambient_temperature", "temperature", "ambient_temperature")
+    else:
+        T0 = DEFAULT_AMBIENT_TEMPERATURE
+    _between(T0, "ambient_temperature", 0, 1000, given=data.get("ambient_temperature"))
+
+    for key in ("low_pressure", "high_pressure"):
+        _require(data, key, key, f"a pressure such as {_EXAMPLES['pressure']}")
+    p_low = _quantity(data, "low_pressure", "pressure", "low_pressure")
+    p_high = _quantity(data, "high_pressure", "pressure", "high_pressure")
+    if p_low <= 0:
+        raise ScenarioError(f"low_pressure must be above 0 (absolute), got {data['low_pressure']!r}")
+    if p_high <= p_low:
+        raise ScenarioError(f"high_pressure must be above low_pressure ({_bar(p_low)}), got {data['high_pressure']!r}")
+
+    compressor = _parse_compressor(data.get("compressor"))
+    aftercooler = _parse_aftercooler(data.get("aftercooler") or {}, T0, p_high, p_low)
+    recuperator = _parse_recuperator(data.get("recuperator"), p_high - aftercooler.pressure_drop, p_low)
+
+    production = _parse_production(data.get("production"))
+    heat_leak = 0.0
+    if data.get("heat_leak") is not None:
+        heat_leak = _quantity(data, "heat_leak", "power", "heat_leak")
+        if heat_leak < 0:
+            raise ScenarioError(f"heat_leak must be 0 or more, got {data['heat_leak']!r}")
+    if heat_leak > 0 and production is None:
+        raise ScenarioError("heat_leak needs production: give production.liquid_rate or production.compressor_flow")
+    if recuperator.ua is not None and production is None:
+        raise ScenarioError("recuperator.ua needs production: give production.liquid_rate or "
+                            "production.compressor_flow (UA is an absolute size, W/K)")
+
+    return Scenario(gas=gas, ambient_temperature=T0, low_pressure=p_low, high_pressure=p_high,
+                    compressor=compressor, aftercooler=aftercooler, recuperator=recuperator,
+                    heat_leak=heat_leak, production=production, name=name, source=dict(data))
+
+
+def _parse_compressor(section):
+    if section is None:
+        raise ScenarioError("missing compressor: expected compressor.isothermal_efficiency, or "
+                            "compressor.stages with compressor.isentropic_efficiency")
+    if "isothermal_efficiency" in section and ("isentropic_efficiency" in section or "stages" in section):
+        other = "isentropic_efficiency" if "isentropic_efficiency" in section else "stages"
+        raise ScenarioError(f"give one of compressor.isothermal_efficiency or compressor.stages with "
+                            f"compressor.isentropic_efficiency, not compressor.isothermal_efficiency and compressor.{other}")
+    if section.get("isothermal_efficiency") is not None:
+        eta = _number(section, "isothermal_efficiency", "compressor.isothermal_efficiency")
+        _between(eta, "compressor.isothermal_efficiency", 0, 1, given=section["isothermal_efficiency"])
+        return CompressorSpec(isothermal_efficiency=eta)
+    if section.get("isentropic_efficiency") is None:
+        raise ScenarioError("missing compressor.isentropic_efficiency (with compressor.stages) or "
+                            "compressor.isothermal_efficiency: expected a number between 0 and 1")
+    eta = _number(section, "isentropic_efficiency", "compressor.isentropic_efficiency")
+    _between(eta, "compressor.isentropic_efficiency", 0, 1, given=section["isentropic_efficiency"])
+    stages = 1
+    if section.get("stages") is not None:
+        stages = _integer(section, "stages", "compressor.stages", 1, 12)
+    return CompressorSpec(stages=stages, isentropic_efficiency=eta)
+
+
+def _parse_aftercooler(section, T0, p_high, p_low):
+    T_out = T0
+    if section.get("outlet_temperature") is not None:
+        T_out = _quantity(section, "outlet_temperature", "temperature", "aftercooler.outlet_temperature")
+        _between(T_out, "aftercooler.outlet_temperature", 0, 1000, given=section["outlet_temperature"])
+    dp = 0.0
+    if section.get("pressure_drop") is not None:
+        dp = _quantity(section, "pressure_drop", "pressure", "aftercooler.pressure_drop")
+        if dp < 0 or p_high - dp <= p_low:
+            raise ScenarioError(f"aftercooler.pressure_drop must be 0 or more and leave the pressure above "
+                                f"low_pressure, got {section['pressure_drop']!r}")
+    return AftercoolerSpec(outlet_temperature=T_out, pressure_drop=dp)
+
+
+def _parse_recuperator(section, p_hot_in, p_low):
+    if section is None:
+        raise ScenarioError("missing recuperator: expected one of recuperator.effectiveness, "
+                            "recuperator.min_approach or recuperator.ua")
+    mode = _exactly_one(section, ["effectiveness", "min_approach", "ua"], "recuperator")
+    values = {}
+    if mode == "effectiveness":
+        eps = _number(section, "effectiveness", "recuperator.effectiveness")
+        values["effectiveness"] = _between(eps, "recuperator.effectiveness", 0, 1, given=section["effectiveness"])
+    elif mode == "min_approach":
+        dT = _quantity(section, "min_approach", "temperature_difference", "recuperator.min_approach")
+        if dT < 0 or dT > 200:
+            raise ScenarioError(f"recuperator.min_approach must be from 0 to 200 K, got {section['min_approach']!r}")
+        values["min_approach"] = dT
+    else:
+        ua = _quantity(section, "ua", "thermal_conductance", "recuperator.ua")
+        if ua <= 0:
+            raise ScenarioError(f"recuperator.ua must be above 0 W/K, got {section['ua']!r}")
+        values["ua"] = ua
+    if section.get("zones") is not None:
+        values["zones"] = _integer(section, "zones", "recuperator.zones", 1, 2000)
+    for side, limit in (("high_side_pressure_drop", p_hot_in - p_low), ("low_side_pressure_drop", p_low)):
+        if section.get(side) is not None:
+            dp = _quantity(section, side, "pressure", f"recuperator.{side}")
+            if dp < 0 or dp >= limit:
+                raise ScenarioError(f"recuperator.{side} must be 0 or more and below {_bar(limit)}, "
+                                    f"got {section[side]!r}")
+            values[side] = dp
+    return RecuperatorSpec(**values)
+
+
+def _parse_production(section):
+    if section is None:
+        return None
+    key = _exactly_one(section, ["liquid_rate", "compressor_flow"], "production")
+    if key == "compressor_flow":
+        flow = _quantity(section, key, "mass_flow", "production.compressor_flow")
+        if flow <= 0:
+            raise ScenarioError(f"production.compressor_flow must be above 0, got {section[key]!r}")
+        return ProductionSpec(compressor_flow=flow)
+    value = section[key]
+    try:
+        rate = parse_quantity(value, "mass_flow")
+        spec = ProductionSpec(liquid_mass_rate=rate)
+    except UnitError:
+        try:
+            rate = parse_quantity(value, "volume_flow")
+        except UnitError:
+            raise ScenarioError(f"production.liquid_rate: expected a mass flow such as '8 kg/h' or a volume "
+                                f"flow of liquid such as '10 L/h', got {value!r}") from None
+        spec = ProductionSpec(liquid_volume_rate=rate)
+    if rate <= 0:
+        raise ScenarioError(f"production.liquid_rate must be above 0, got {value!r}")
+    return spec
+
+
+def load_scenario(path):
+    """Read and validate a YAML scenario file.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        Path of the scenario file.
+
+    Returns
+    -------
+    Scenario
+    """
+    import yaml
+
+    try:
+        with open(path, encoding="utf-8") as handle:
+            data = yaml.safe_load(handle)
+    except FileNotFoundError:
+        raise ScenarioError(f"scenario file {path} not found") from None
+    except OSError as err:
+        raise ScenarioError(f"scenario file {path} could not be read: {err.strerror}") from None
+    except yaml.YAMLError as err:
+        mark = getattr(err, "problem_mark", None)
+        where = f" at line {mark.line + 1}" if mark is not None else ""
+        raise ScenarioError(f"scenario file {path} is not valid YAML{where}: "
+                            f"{getattr(err, 'problem', None) or err}") from None
+    if data is None:
+        raise ScenarioError(f"scenario file {path} is empty: expected a mapping with gas, low_pressure, ...")
+    return parse_scenario(data)

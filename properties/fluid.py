@@ -1,0 +1,298 @@
+"""The fluid adapter: states, Joule-Thomson coefficient, inversion and saturation data.
+
+Every state comes from CoolProp's low-level ``AbstractState`` with the HEOS backend (the
+reference multiparameter equations of state).  One ``AbstractState`` is kept per fluid
+per process (:func:`get_fluid`); states handed out are immutable :class:`State` objects.
+"""
+
+from functools import lru_cache
+import math
+
+import numpy as np
+from scipy.optimize import brentq
+import CoolProp
+from CoolProp import CoolProp as CP
+
+from properties.errors import PropertyRangeError
+from properties.fluids import resolve_fluid_name
+from properties.state import State
+
+_PHASES = {
+    CP.iphase_liquid: "liquid",
+    CP.iphase_gas: "gas",
+    CP.iphase_twophase: "two-phase",
+    CP.iphase_supercritical: "supercritical",
+    CP.iphase_supercritical_gas: "supercritical gas",
+    CP.iphase_supercritical_liquid: "supercritical liquid",
+    CP.iphase_critical_point: "critical point",
+}
+
+# A pressure this close (relative) to the critical pressure is "at" it: CoolProp's
+# (p, h) flash has no solution there (see shared coolprop notes).
+_CRITICAL_PRESSURE_BAND = 1e-9
+
+
+def _fmt_T(T):
+    return f"{T:.6g} K"
+
+
+def _fmt_p(p):
+    return f"{p / 1e5:.6g} bar"
+
+
+class Fluid:
+    """One pure (or pseudo-pure) fluid and the property calls lhsim needs.
+
+    Parameters
+    ----------
+    name : str
+        Fluid name or alias, case-insensitive (see :func:`properties.resolve_fluid_name`).
+
+    Notes
+    -----
+    Use :func:`get_fluid` rather than the constructor: it keeps one instance per fluid.
+    """
+
+    def __init__(self, name):
+        self.name = resolve_fluid_name(name)
+        self._state = CoolProp.AbstractState("HEOS", self.name)
+        st = self._state
+        self.molar_mass = st.molar_mass()  # kg/mol
+        self.T_critical = st.T_critical()
+        self.p_critical = st.p_critical()
+        self.T_triple = st.Ttriple()
+        self.p_triple = st.p_triple()
+        self.T_min = st.Tmin()
+        self.T_max = st.Tmax()
+        self.p_max = st.pmax()
+        self._has_melting_line = st.has_melting_line()
+        self._max_inversion = None
+        self._sat_cache = {}
+
+    def __repr__(self):
+        return f"Fluid({self.name!r})"
+
+    # -- range checks -----------------------------------------------------------------
+
+    def _range_text(self):
+        return (f"valid range for {self.name}: T from {_fmt_T(self.T_min)} (or the melting line) "
+                f"to {_fmt_T(self.T_max)}, p above 0 up to {_fmt_p(self.p_max)}")
+
+    def _fail(self, asked, reason):
+        raise PropertyRangeError(f"{self.name}: no state at {asked}: {reason}; {self._range_text()}")
+
+    def melting_temperature(self, p):
+        """Melting temperature at pressure ``p`` [Pa] in K, or None where the fluid has no
+        melting line in CoolProp or ``p`` is outside it."""
+        if not self._has_melting_line:
+            return None
+        try:
+            return self._state.melting_line(CP.iT, CP.iP, p)
+        except ValueError:
+            return None
+
+    def _check_p(self, p, asked):
+        if not (isinstance(p, (int, float, np.floating)) and math.isfinite(p)) or p <= 0:
+            self._fail(asked, "pressure must be a positive finite number")
+        if p > self.p_max:
+            self._fail(asked, f"pressure above the equation of state's limit {_fmt_p(self.p_max)}")
+
+    def _check_T(self, T, p, asked):
+        if not (isinstance(T, (int, float, np.floating)) and math.isfinite(T)) or T <= 0:
+            self._fail(asked, "temperature must be a positive finite number")
+        if T < self.T_min:
+            self._fail(asked, f"temperature below the lowest the equation of state covers, {_fmt_T(self.T_min)}")
+        if T > self.T_max:
+            self._fail(asked, f"temperature above the highest the equation of state covers, {_fmt_T(self.T_max)}")
+        Tm = self.melting_temperature(p)
+        if Tm is not None and T < Tm:
+            self._fail(asked, f"below the melting temperature {_fmt_T(Tm)} at that pressure (solid)")
+
+    def _snapshot(self, p=None):
+        """Freeze the current AbstractState; ``p`` replaces CoolProp's round-tripped pressure."""
+        st = self._state
+        q = st.Q()
+        phase = _PHASES.get(st.phase(), "unknown")
+        quality = float(q) if phase == "two-phase" and 0.0 <= q <= 1.0 else None
+        return State(self.name, st.T(), float(p) if p is not None else st.p(), st.hmass(), st.smass(),
+                     st.rhomass(), quality, phase)
+
+    def _update(self, pair, a, b, asked):
+        try:
+            self._state.update(pair, a, b)
+        except ValueError as err:
+            self._fail(asked, f"CoolProp could not solve it ({str(err).strip()})")
+
+    # -- states -----------------------------------------------------------------------
+
+    def state_tp(self, T, p):
+        """State at temperature ``T`` [K] and pressure ``p`` [Pa] (single phase)."""
+        asked = f"T = {_fmt_T(T)}, p = {_fmt_p(p)}"
+        self._check_p(p, asked)
+        self._check_T(T, p, asked)
+        self._update(CP.PT_INPUTS, p, T, asked)
+        return self._snapshot(p)
+
+    def _check_ph_pressure(self, p, asked):
+        self._check_p(p, asked)
+        if abs(p / self.p_critical - 1.0) < _CRITICAL_PRESSURE_BAND:
+            self._fail(asked, "the (p, h) and (p, s) flashes are undefined at exactly the critical "
+                              f"pressure {_fmt_p(self.p_critical)}; use a pressure slightly away from it")
+
+    def state_ph(self, p, h):
+        """State at pressure ``p`` [Pa] and specific enthalpy ``h`` [J/kg]."""
+        asked = f"p = {_fmt_p(p)}, h = {h / 1e3:.6g} kJ/kg"
+        self._check_ph_pressure(p, asked)
+        self._update(CP.HmassP_INPUTS, h, p, asked)
+        return self._snapshot(p)
+
+    def state_ps(self, p, s):
+        """State at pressure ``p`` [Pa] and specific entropy ``s`` [J/(kg K)]."""
+        asked = f"p = {_fmt_p(p)}, s = {s / 1e3:.6g} kJ/(kg K)"
+        self._check_ph_pressure(p, asked)
+        self._update(CP.PSmass_INPUTS, p, s, asked)
+        return self._snapshot(p)
+
+    def _saturated(self, p, quality):
+        kind = "saturated liquid" if quality == 0 else "saturated vapour"
+        asked = f"{kind}, p = {_fmt_p(p)}"
+        self._check_p(p, asked)
+        if p >= self.p_critical:
+            self._fail(asked, f"no saturation at or above the critical pressure {_fmt_p(self.p_critical)}")
+        if p < self.p_triple:
+            self._fail(asked, f"no liquid below the triple-point pressure {_fmt_p(self.p_triple)}")
+        key = (p, quality)
+        cached = self._sat_cache.get(key)
+        if cached is None:
+            self._update(CP.PQ_INPUTS, p, quality, asked)
+            cached = self._snapshot(p)
+            if cached.quality is None:  # report saturation states as such
+                cached = State(self.name, cached.T, cached.p, cached.h, cached.s, cached.density,
+                               float(quality), "two-phase")
+            if len(self._sat_cache) > 4096:
+                self._sat_cache.clear()
+            self._sat_cache[key] = cached
+        return cached
+
+    def saturated_liquid(self, p):
+        """Saturated liquid at pressure ``p`` [Pa] (the bubble point for pseudo-pure air)."""
+        return self._saturated(p, 0)
+
+    def saturated_vapour(self, p):
+        """Saturated vapour at pressure ``p`` [Pa] (the dew point for pseudo-pure air)."""
+        return self._saturated(p, 1)
+
+    def saturation_temperature(self, p):
+        """Saturation (bubble-point) temperature at ``p`` [Pa] in K; None at or above the
+        critical pressure or below the triple-point pressure."""
+        if not (self.p_triple <= p < self.p_critical):
+            return None
+        return self.saturated_liquid(p).T
+
+    def states_ph(self, pressures, enthalpies, guesses=None):
+        """Many (p, h) states in one call: the march along an exchanger side.
+
+        Parameters
+        ----------
+        pressures : float or array_like
+            Pressure of each state [Pa]; a scalar applies to all.
+        enthalpies : array_like
+            Specific enthalpy of each state [J/kg], in march order.
+        guesses : array_like, optional
+            Temperature guesses [K] (for example the previous solve); a faster flash may use
+            them to warm-start, this one does not need them.
+
+        Returns
+        -------
+        list of State
+        """
+        h = np.atleast_1d(np.asarray(enthalpies, dtype=float))
+        p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
+        return [self.state_ph(float(pk), float(hk)) for pk, hk in zip(p, h)]
+
+    # -- Joule-Thomson effect ---------------------------------------------------------
+
+    def jt_coefficient(self, T, p):
+        """Joule-Thomson coefficient (dT/dp) at constant enthalpy [K/Pa] at ``T`` [K], ``p`` [Pa].
+
+        Positive where an adiabatic throttle cools the fluid.
+        """
+        self.state_tp(T, p)
+        return self._state.first_partial_deriv(CP.iT, CP.iP, CP.iHmass)
+
+    def _jt_or_nan(self, T, p):
+        try:
+            return self.jt_coefficient(T, p)
+        except PropertyRangeError:
+            return math.nan
+
+    def inversion_temperatures(self, p, points=240):
+        """Temperatures at which the Joule-Thomson coefficient changes sign along the isobar ``p``.
+
+        Parameters
+        ----------
+        p : float
+            Pressure [Pa].
+        points : int
+            Size of the scan grid before each sign change is refined by Brent's method.
+
+        Returns
+        -------
+        tuple of float
+            Inversion temperatures [K], ascending; empty above the maximum inversion pressure.
+            Below the critical pressure the isobar is scanned in the liquid and in the vapour
+            separately (mu_JT jumps across the saturation temperature, which is no inversion).
+        """
+        self._check_p(p, f"inversion temperatures at p = {_fmt_p(p)}")
+        T_low = max(self.T_min, self.melting_temperature(p) or self.T_min) * (1 + 1e-6)
+        T_sat = self.saturation_temperature(p)
+        segments = [(T_low, self.T_max)]
+        if T_sat is not None:
+            segments = [(T_low, T_sat * (1 - 1e-5)), (T_sat * (1 + 1e-5), self.T_max)]
+        found = []
+        for a, b in segments:
+            if b <= a:
+                continue
+            grid = np.geomspace(a, b, points)
+            mu = np.array([self._jt_or_nan(T, p) for T in grid])
+            for k in range(points - 1):
+                if np.isfinite(mu[k]) and np.isfinite(mu[k + 1]) and mu[k] * mu[k + 1] < 0:
+                    found.append(brentq(self.jt_coefficient, grid[k], grid[k + 1], args=(p,), xtol=1e-6))
+        return tuple(sorted(found))
+
+    def max_inversion_temperature(self):
+        """Maximum inversion temperature [K]: the upper inversion temperature as p -> 0.
+
+        In the zero-pressure limit mu_JT cp = T dB/dT - B, with B the second virial
+        coefficient, so the maximum inversion temperature is the root of T dB/dT - B = 0.
+        The root is searched up to three times the equation of state's upper temperature;
+        above that upper temperature (methane, for example) the value is an extrapolation.
+
+        References
+        ----------
+        R. F. Barron, *Cryogenic Systems*, 2nd ed., Oxford University Press, 1985, sec. 3.3
+        (the inversion curve and the virial form of mu_JT).
+        """
+        if self._max_inversion is None:
+            st = self._state
+
+            def f(T):
+                st.update(CP.DmolarT_INPUTS, 1e-8, T)
+                return T * st.dBvirial_dT() - st.Bvirial()
+
+            a, b = self.T_critical, 3.0 * self.T_max
+            if f(a) * f(b) > 0:
+                raise PropertyRangeError(f"{self.name}: no maximum inversion temperature found "
+                                         f"between {_fmt_T(a)} and {_fmt_T(b)}")
+            self._max_inversion = brentq(f, a, b, xtol=1e-6)
+        return self._max_inversion
+
+
+@lru_cache(maxsize=None)
+def _fluid_by_canonical_name(name):
+    return Fluid(name)
+
+
+def get_fluid(name):
+    """Return the process-wide :class:`Fluid` for ``name`` (built once, on first use)."""
+    return _fluid_by_canonical_name(resolve_fluid_name(name))
