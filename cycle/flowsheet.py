@@ -199,8 +199,6 @@ class SimpleLindeHampson:
                 return m_liq / y if y > 0 else math.inf
             return None
 
-        Q_hi = rec.max_hot_duty(fl, hot_in, vapour)
-        tol = xtol if xtol is not None else DUTY_RTOL * Q_hi
         mode = rec.spec.mode
         counter = {"calls": 0}
 
@@ -209,6 +207,14 @@ class SimpleLindeHampson:
 
         def eps_at(duty):
             return rec.effectiveness(fl, hot_in, vapour, 1.0 - yield_of(duty), duty)
+
+        # The largest duty the second law allows: the high-pressure stream cooled to the
+        # returning vapour's temperature, or the return gas warmed to the high-pressure inlet
+        # temperature (effectiveness 1), whichever comes first.
+        Q_hi = rec.max_hot_duty(fl, hot_in, vapour)
+        if mode != "effectiveness" and eps_at(Q_hi) > 1.0:
+            Q_hi = brentq(lambda d: eps_at(d) - 1.0, 0.0, Q_hi, xtol=DUTY_RTOL * Q_hi, rtol=1e-14)
+        tol = xtol if xtol is not None else DUTY_RTOL * Q_hi
 
         def crit_eps():
             # y = 0 when the high-pressure outlet leaves with h = hg - q (all return flow = 1).
@@ -243,14 +249,15 @@ class SimpleLindeHampson:
                     f"recuperator.effectiveness {target:g} cannot be reached: the high-pressure stream "
                     f"would have to leave colder than the returning vapour ({vapour.T:.2f} K); the most "
                     f"this exchanger can reach here is {eps_at(Q_hi):.4f}")
-            if f_hi == 0.0:
+            # At the largest duty the streams touch, so a zero minimum approach lies there.
+            if f_hi == 0.0 or (mode == "min_approach" and f_hi > -1e-6):
                 duty, root = Q_hi, None
             else:
-                f_lo = residual(0.0)
-                if f_lo * f_hi > 0:
+                if mode == "min_approach" and residual(0.0) < 0:
                     raise NoLiquefactionError(
                         f"no liquid: recuperator.min_approach {target:g} K is more than the temperature "
-                        f"difference between the high-pressure inlet and the returning vapour allows")
+                        f"difference between the high-pressure inlet ({hot_in.T:.2f} K) and the returning "
+                        f"vapour ({vapour.T:.2f} K)")
                 duty, root = brentq(residual, 0.0, Q_hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
                                     full_output=True, disp=False)
             res = residual(duty)
