@@ -134,6 +134,14 @@ class SimpleLindeHampson:
                 f"than at the return pressure {return_p / 1e5:g} bar, so even a perfect recuperator makes "
                 f"no liquid (the high pressure lies beyond the inversion curve); lower high_pressure")
 
+    def _keyed_state(self, key, T, p):
+        from properties import PropertyRangeError
+
+        try:
+            return self.fluid.state_tp(T, p)
+        except PropertyRangeError as err:
+            raise ScenarioError(f"{key} {T:g} K gives no valid state at {p / 1e5:g} bar: {err}") from None
+
     # -- the solve --------------------------------------------------------------------
 
     def solve(self, xtol=None, maxiter=200):
@@ -167,9 +175,16 @@ class SimpleLindeHampson:
         self._check_pressures()
 
         # Fixed states: the recuperator hot inlet and the separator saturation states.
-        hot_in_ref = fl.state_tp(sc.aftercooler.outlet_temperature, sc.high_pressure)
+        hot_in_ref = self._keyed_state("aftercooler.outlet_temperature", sc.aftercooler.outlet_temperature,
+                                       sc.high_pressure)
+        self._keyed_state("ambient_temperature", sc.ambient_temperature, self.suction_pressure)
         hot_in, _ = self.aftercooler.run(fl, hot_in_ref)
         liquid, vapour = self.separator.saturation(fl)
+        for key, T in (("ambient_temperature", sc.ambient_temperature),
+                       ("aftercooler.outlet_temperature", hot_in_ref.T)):
+            if T <= vapour.T:
+                raise ScenarioError(f"{key} must be above the boiling temperature of {fl.name} at "
+                                    f"low_pressure ({vapour.T:.2f} K), got {T:g} K")
         return_p = self.suction_pressure
         self._check_inversion(hot_in, return_p)
 
