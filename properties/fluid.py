@@ -7,6 +7,7 @@ per process (:func:`get_fluid`); states handed out are immutable :class:`State` 
 
 from functools import lru_cache
 import math
+import numbers
 
 import numpy as np
 from scipy.optimize import brentq
@@ -30,6 +31,10 @@ _PHASES = {
 # A pressure this close (relative) to the critical pressure is "at" it: CoolProp's
 # (p, h) flash has no solution there (see shared coolprop notes).
 _CRITICAL_PRESSURE_BAND = 1e-9
+
+
+def _is_number(x):
+    return isinstance(x, numbers.Real) and not isinstance(x, bool)
 
 
 def _fmt_T(T):
@@ -83,22 +88,36 @@ class Fluid:
 
     def melting_temperature(self, p):
         """Melting temperature at pressure ``p`` [Pa] in K, or None where the fluid has no
-        melting line in CoolProp or ``p`` is outside it."""
+        melting line in CoolProp or ``p`` is outside it.
+
+        CoolProp's melting line for normal hydrogen lies below its own triple point (1.7 K at
+        1 bar); for it the para-hydrogen line is used, shifted to start at normal hydrogen's
+        triple point (the two differ by about 0.15 K).  No melting line is allowed below the
+        triple-point temperature.
+        """
         if not self._has_melting_line:
             return None
         try:
-            return self._state.melting_line(CP.iT, CP.iP, p)
+            T = self._state.melting_line(CP.iT, CP.iP, p)
         except ValueError:
             return None
+        if T < self.T_triple and p >= self.p_triple:
+            if self.name in ("Hydrogen", "OrthoHydrogen"):
+                para = get_fluid("ParaHydrogen")
+                T_para = para.melting_temperature(p)
+                if T_para is not None:
+                    return max(T_para + (self.T_triple - para.T_triple), self.T_triple)
+            return self.T_triple
+        return T
 
     def _check_p(self, p, asked):
-        if not (isinstance(p, (int, float, np.floating)) and math.isfinite(p)) or p <= 0:
+        if not _is_number(p) or not math.isfinite(p) or p <= 0:
             self._fail(asked, "pressure must be a positive finite number")
         if p > self.p_max:
             self._fail(asked, f"pressure above the equation of state's limit {_fmt_p(self.p_max)}")
 
     def _check_T(self, T, p, asked):
-        if not (isinstance(T, (int, float, np.floating)) and math.isfinite(T)) or T <= 0:
+        if not _is_number(T) or not math.isfinite(T) or T <= 0:
             self._fail(asked, "temperature must be a positive finite number")
         if T < self.T_min:
             self._fail(asked, f"temperature below the lowest the equation of state covers, {_fmt_T(self.T_min)}")
@@ -119,9 +138,19 @@ class Fluid:
 
     def _update(self, pair, a, b, asked):
         try:
-            self._state.update(pair, a, b)
+            self._state.update(pair, float(a), float(b))
         except ValueError as err:
             self._fail(asked, f"CoolProp could not solve it ({str(err).strip()})")
+
+    def _check_result(self, asked):
+        """A (p, h) or (p, s) flash may land outside the equation of state's temperatures."""
+        T = self._state.T()
+        if T > self.T_max * (1 + 1e-9):
+            self._fail(asked, f"the state would be at {_fmt_T(T)}, above the highest temperature the "
+                              f"equation of state covers, {_fmt_T(self.T_max)}")
+        if T < self.T_min * (1 - 1e-9):
+            self._fail(asked, f"the state would be at {_fmt_T(T)}, below the lowest temperature the "
+                              f"equation of state covers, {_fmt_T(self.T_min)}")
 
     # -- states -----------------------------------------------------------------------
 
@@ -144,6 +173,7 @@ class Fluid:
         asked = f"p = {_fmt_p(p)}, h = {h / 1e3:.6g} kJ/kg"
         self._check_ph_pressure(p, asked)
         self._update(CP.HmassP_INPUTS, h, p, asked)
+        self._check_result(asked)
         return self._snapshot(p)
 
     def state_ps(self, p, s):
@@ -151,6 +181,7 @@ class Fluid:
         asked = f"p = {_fmt_p(p)}, s = {s / 1e3:.6g} kJ/(kg K)"
         self._check_ph_pressure(p, asked)
         self._update(CP.PSmass_INPUTS, p, s, asked)
+        self._check_result(asked)
         return self._snapshot(p)
 
     def _saturated(self, p, quality):
