@@ -51,26 +51,34 @@ class Compressor:
         self.cooling_temperature = cooling_temperature
         self.ambient_temperature = ambient_temperature
 
-    def run(self, fluid, inlet, p_out):
-        """Compress ``inlet`` to ``p_out`` [Pa]; return a :class:`CompressionResult`."""
+    def run(self, fluid, inlet, p_out, section="", cool_after=False):
+        """Compress ``inlet`` to ``p_out`` [Pa]; return a :class:`CompressionResult`.
+
+        Parameters
+        ----------
+        section : str
+            Prefix for the state labels (``"low-pressure section "``).
+        cool_after : bool
+            Intercool the last stage's discharge too (a section that feeds another).
+        """
         spec = self.spec
+        last = f"{section}discharge" if section else "compressor discharge"
         if spec.isothermal_efficiency is not None:
             outlet, work, heat = processes.compress_isothermal(
                 fluid, inlet, p_out, self.cooling_temperature, spec.isothermal_efficiency,
                 self.ambient_temperature)
-            return CompressionResult([("compressor discharge", outlet)], work, heat)
+            return CompressionResult([(last, outlet)], work, heat)
         states, work, heat = [], 0.0, 0.0
         state = inlet
         pressures = processes.stage_pressures(inlet.p, p_out, spec.stages)
         for k, p_stage in enumerate(pressures, start=1):
             state, w = processes.compress_isentropic(fluid, state, p_stage, spec.isentropic_efficiency)
             work += w
-            label = "compressor discharge" if k == spec.stages else f"stage {k} discharge"
-            states.append((label, state))
-            if k < spec.stages:
+            states.append((last if k == spec.stages else f"{section}stage {k} discharge", state))
+            if k < spec.stages or cool_after:
                 state, duty = processes.cool(fluid, state, self.cooling_temperature)
                 heat += duty
-                states.append((f"intercooler {k} outlet", state))
+                states.append((f"{section}intercooler {k} outlet", state))
         return CompressionResult(states, work, heat)
 
 
@@ -117,14 +125,20 @@ class Separator:
 
 
 class MakeupMixer:
-    """Mixes the make-up gas (replacing the liquid drawn) into the return gas at compressor suction."""
+    """Mixes the make-up gas (replacing the liquid drawn) into the return gas at compressor suction.
 
-    def __init__(self, pressure, makeup_temperature):
+    The make-up gas is supplied at ``makeup_temperature`` [K] and ``makeup_pressure`` [Pa] (the
+    ambient state the ideal work of liquefaction starts from) and expands into the suction
+    pressure as it mixes.
+    """
+
+    def __init__(self, pressure, makeup_temperature, makeup_pressure=None):
         self.pressure = pressure
         self.makeup_temperature = makeup_temperature
+        self.makeup_pressure = makeup_pressure if makeup_pressure is not None else pressure
 
     def makeup_state(self, fluid):
-        return fluid.state_tp(self.makeup_temperature, self.pressure)
+        return fluid.state_tp(self.makeup_temperature, self.makeup_pressure)
 
     def run(self, fluid, return_state, return_flow, makeup_flow):
         makeup = self.makeup_state(fluid)
@@ -132,42 +146,137 @@ class MakeupMixer:
 
 
 class Recuperator:
-    """Counterflow recuperator between the high-pressure stream and the cold return gas.
+    """Counterflow recuperator: the high-pressure stream against one or more cold return streams.
 
-    Sized by exactly one of ``effectiveness`` (on the low-pressure stream: its enthalpy
-    rise over the rise to the high-pressure inlet temperature), ``min_approach`` [K] (the
-    internal pinch over the zones) or ``ua`` [W/K] (sum of zone duty over zone LMTD).
+    Sized by exactly one of ``effectiveness`` (the cold streams' enthalpy rise over their rise
+    to the high-pressure inlet temperature), ``min_approach`` [K] (the internal pinch over the
+    zones) or ``ua`` [W/K] (sum of zone duty over zone LMTD).  With several cold streams they
+    form one composite and leave at a common temperature.
 
     Parameters
     ----------
     spec : cycle.scenario.RecuperatorSpec
+    key : str
+        The scenario key it was given under, for messages (``recuperator``, ``cold_recuperator``).
+
+    Notes
+    -----
+    Cold streams are given as a list of ``(inlet state, flow)``, flows per kg of compressor flow.
     """
 
-    def __init__(self, spec):
+    def __init__(self, spec, key="recuperator"):
         self.spec = spec
+        self.key = key
         self.zones = spec.zones
 
-    def pressures(self, hot_in_p, cold_in_p):
-        """Outlet pressures of the hot and cold sides [Pa]."""
-        return hot_in_p - self.spec.high_side_pressure_drop, cold_in_p - self.spec.low_side_pressure_drop
+    def hot_outlet_pressure(self, hot_in_p):
+        return hot_in_p - self.spec.high_side_pressure_drop
 
-    def effectiveness(self, fluid, hot_in, cold_in, cold_flow, duty):
-        """Effectiveness reached with ``duty`` [J/kg compressed] and ``cold_flow`` [-]."""
-        _, cold_p_out = self.pressures(hot_in.p, cold_in.p)
-        h_max = fluid.state_tp(hot_in.T, cold_p_out).h
-        return duty / (cold_flow * (h_max - cold_in.h))
+    def cold_outlet_pressure(self, cold_in_p):
+        return cold_in_p - self.spec.low_side_pressure_drop
 
-    def profile(self, fluid, hot_in, cold_in, cold_flow, duty, zones=None):
+    def effectiveness(self, fluid, hot_in, colds, duty):
+        """Effectiveness reached with ``duty`` [J/kg compressed]."""
+        most = sum(flow * (fluid.state_tp(hot_in.T, self.cold_outlet_pressure(st.p)).h - st.h)
+                   for st, flow in colds)
+        return duty / most
+
+    def profile(self, fluid, hot_in, colds, duty, zones=None):
         """Temperature profile for ``duty`` [J/kg compressed] (:class:`~cycle.processes.ExchangerProfile`)."""
-        hot_p_out, cold_p_out = self.pressures(hot_in.p, cold_in.p)
-        return processes.counterflow_profile(fluid, hot_in, hot_p_out, 1.0, cold_in, cold_p_out,
-                                             cold_flow, duty, zones or self.zones)
+        zones = zones or self.zones
+        hot_p_out = self.hot_outlet_pressure(hot_in.p)
+        if len(colds) == 1:
+            (cold_in, flow), = colds
+            return processes.counterflow_profile(fluid, hot_in, hot_p_out, 1.0, cold_in,
+                                                 self.cold_outlet_pressure(cold_in.p), flow, duty, zones)
+        return processes.composite_profile(
+            fluid, hot_in, hot_p_out, 1.0,
+            [(st, self.cold_outlet_pressure(st.p), flow) for st, flow in colds], duty, zones)
 
-    def max_hot_duty(self, fluid, hot_in, cold_in):
-        """Duty that cools the hot stream to the cold-inlet temperature [J/kg compressed]."""
-        hot_p_out, _ = self.pressures(hot_in.p, cold_in.p)
-        T_floor = cold_in.T
+    def max_hot_duty(self, fluid, hot_in, T_floor):
+        """Duty that cools the hot stream to ``T_floor`` [K] (or its melting line) [J/kg compressed]."""
+        hot_p_out = self.hot_outlet_pressure(hot_in.p)
         T_melt = fluid.melting_temperature(hot_p_out)
         if T_melt is not None and T_melt > T_floor:
             T_floor = T_melt * (1 + 1e-9)
         return hot_in.h - fluid.state_tp(T_floor, hot_p_out).h
+
+
+@dataclass(frozen=True)
+class PrecoolingSupply:
+    """What the precooler's heat costs.
+
+    Attributes
+    ----------
+    work : float
+        Work charged [J/kg of compressor flow].
+    sink_temperature : float
+        Temperature at which the heat is taken up: the bath's boiling point, or the
+        precooling temperature for a refrigerator [K].
+    coolant : float or None
+        Coolant boiled off [kg per kg of compressor flow], for a bath.
+    coolant_work : float or None
+        Work charged per kg of coolant [J/kg].
+    lower_bound : bool
+        True where the coolant is charged at its ideal work of liquefaction.
+    """
+
+    work: float
+    sink_temperature: float
+    coolant: float = None
+    coolant_work: float = None
+    lower_bound: bool = False
+
+
+class Precooler:
+    """Brings the high-pressure stream to ``spec.temperature`` and says what that costs.
+
+    A boiling bath of ``spec.coolant`` at ``spec.coolant_pressure`` takes the heat as latent
+    heat (liquid in, saturated vapour out, its cold not recovered), charged at
+    ``spec.coolant_work`` per kg boiled off (default: the coolant's ideal work of
+    liquefaction from ambient, a lower bound).  A refrigerator rejecting heat at ambient takes
+    it at the precooling temperature with ``spec.refrigerator_cop``, or with a fraction of the
+    Carnot COP.
+
+    Parameters
+    ----------
+    spec : cycle.scenario.PrecoolingSpec
+    ambient_temperature : float
+        [K]
+    """
+
+    def __init__(self, spec, ambient_temperature):
+        self.spec = spec
+        self.ambient_temperature = ambient_temperature
+
+    def run(self, fluid, inlet):
+        """Return (outlet state at the precooling temperature, duty [J/kg])."""
+        return processes.cool(fluid, inlet, self.spec.temperature)
+
+    def coolant_states(self):
+        """Saturated liquid and vapour of the bath coolant."""
+        from properties import get_fluid
+
+        coolant = get_fluid(self.spec.coolant)
+        p = self.spec.coolant_pressure
+        return coolant.saturated_liquid(p), coolant.saturated_vapour(p)
+
+    def supply(self, duty):
+        """Cost of ``duty`` [J/kg compressed] of precooling (:class:`PrecoolingSupply`)."""
+        spec, T0 = self.spec, self.ambient_temperature
+        if spec.coolant is not None:
+            from properties import get_fluid
+
+            liquid, vapour = self.coolant_states()
+            boiled = duty / (vapour.h - liquid.h)
+            per_kg = spec.coolant_work
+            lower = per_kg is None
+            if lower:
+                from cycle.flowsheet import ideal_work_of_liquefaction
+
+                per_kg = ideal_work_of_liquefaction(get_fluid(spec.coolant), T0, spec.coolant_pressure)
+            return PrecoolingSupply(boiled * per_kg, liquid.T, boiled, per_kg, lower)
+        cop = spec.refrigerator_cop
+        if cop is None:
+            cop = spec.refrigerator_carnot_fraction * processes.carnot_cop(spec.temperature, T0)
+        return PrecoolingSupply(duty / cop, spec.temperature)

@@ -1,21 +1,26 @@
-"""The simple Linde-Hampson flowsheet: unit operations wired by named streams, and the
-recycle solve.
+"""Linde-Hampson flowsheets: unit operations wired by named streams, and the recycle solve.
 
-Streams (numbered in the state table in this order)::
+Three layouts share one solve:
 
-    suction -> [compressor (stages, intercoolers)] -> discharge -> [aftercooler] -> hp_in
-    hp_in -> [recuperator, high-pressure side] -> hp_out -> [throttle valve] -> valve_out
-    valve_out -> [separator] -> liquid (product) + vapour
-    vapour -> [recuperator, low-pressure side] -> return -> [make-up mixer] + makeup -> suction
+- **simple**: compressor -> aftercooler -> recuperator -> valve -> separator; the vapour
+  returns through the recuperator and mixes with make-up gas at compressor suction.
+- **precooled**: warm recuperator -> precooler -> cold recuperator -> valve; the return gas
+  passes back through both recuperators.
+- **dual-pressure**: two-section compression low -> intermediate -> high; after the
+  recuperator the high-pressure stream is throttled to the intermediate pressure, a fraction
+  returns through the recuperator to the high-pressure section, the rest is throttled to the
+  low pressure into the separator.
 
-The recycle: the return flow (1 - y) depends on the yield y, which depends on what the
-recuperator does with that return flow.  The tear variable is the recuperator duty Q per
-kg of compressor flow.  Given Q, the high-pressure outlet, the valve, the separator (with
-the heat leak) and so the yield and return flow follow in order; the recuperator's sizing
-equation (effectiveness, minimum approach or UA) is then the residual, driven to zero by
-:func:`scipy.optimize.brentq`.
+The recycle: the return flow depends on the yield, which depends on what the recuperator does
+with that return flow.  The tear variable of each recuperator is its duty Q per kg of
+compressor flow.  Given Q, the high-pressure outlet, the valves, the separator (with the heat
+leak) and so the yield and the return flows follow in order; the recuperator's sizing equation
+(effectiveness, minimum approach or UA) is the residual, driven to zero by
+:func:`scipy.optimize.brentq`.  In the precooled layout the precooler fixes the temperature
+between the two recuperators, so the cold one is solved first and the warm one after it.
 """
 
+from dataclasses import dataclass
 import math
 import warnings
 
@@ -29,10 +34,13 @@ from cycle.results import CycleResult, RecuperatorResult, SolveReport, StreamSta
 DUTY_RTOL = 1e-10
 
 
+# -- textbook relations -------------------------------------------------------------------
+
 def ideal_work_of_liquefaction(fluid, T0, p):
     """Minimum work to liquefy gas taken at ``T0`` [K] and ``p`` [Pa] to saturated liquid at ``p``.
 
-    ``W_ideal = T0 (s1 - sf) - (h1 - hf)`` [J/kg].
+    ``W_ideal = T0 (s1 - sf) - (h1 - hf)`` [J/kg]: also the exergy of the liquid relative to
+    the gas at ambient conditions.
 
     References
     ----------
@@ -49,12 +57,13 @@ def ideal_yield(fluid, T, p_low, p_high):
 
     States 1 and 2 are at temperature ``T`` [K] and the low and high pressure [Pa], f is
     saturated liquid at the low pressure; the recuperator is perfect (effectiveness 1) and
-    the cycle has no heat leak or pressure drop.
+    the cycle has no heat leak or pressure drop.  With ``T`` the precooler temperature this
+    is also the yield of an ideal precooled cycle's cold section.
 
     References
     ----------
-    R. F. Barron, *Cryogenic Systems*, 2nd ed., Oxford University Press, 1985, sec. 3.4,
-    eq. for the simple Linde-Hampson system.
+    R. F. Barron, *Cryogenic Systems*, 2nd ed., Oxford University Press, 1985, sec. 3.4
+    (simple Linde-Hampson system) and sec. 3.6 (precooled Linde-Hampson system).
     """
     h1 = fluid.state_tp(T, p_low).h
     h2 = fluid.state_tp(T, p_high).h
@@ -81,8 +90,203 @@ def finite_effectiveness_yield(fluid, T, p_low, p_high, effectiveness):
     return ((h1 - h2) - loss) / ((h1 - hf) - loss)
 
 
-class SimpleLindeHampson:
-    """The simple Linde-Hampson liquefier of a :class:`~cycle.scenario.Scenario`.
+def dual_pressure_ideal_yield(fluid, T, p_low, p_mid, p_high, recirculated_fraction):
+    """Yield of the ideal dual-pressure cycle, y = [(h1 - h3) - i (h1 - h2)] / (h1 - hf).
+
+    States 1, 2, 3 are at temperature ``T`` [K] and the low, intermediate and high pressure
+    [Pa]; i is the fraction of the high-pressure flow recirculated at the intermediate
+    pressure; the recuperator is perfect.
+
+    References
+    ----------
+    R. F. Barron, *Cryogenic Systems*, 2nd ed., Oxford University Press, 1985, sec. 3.7
+    (Linde dual-pressure system).
+    """
+    h1 = fluid.state_tp(T, p_low).h
+    h2 = fluid.state_tp(T, p_mid).h
+    h3 = fluid.state_tp(T, p_high).h
+    hf = fluid.saturated_liquid(p_low).h
+    return ((h1 - h3) - recirculated_fraction * (h1 - h2)) / (h1 - hf)
+
+
+# -- one recuperator seen from its tear variable ------------------------------------------
+
+@dataclass
+class Section:
+    """A recuperator in a flowsheet: the fixed hot inlet, and the cold streams as they
+    follow from a trial duty.
+
+    Parameters
+    ----------
+    fluid : properties.Fluid
+    recuperator : cycle.equipment.Recuperator
+    hot_in : properties.State
+    colds_of : callable
+        ``colds_of(duty) -> [(inlet state, flow), ...]`` for a trial duty [J/kg compressed].
+    T_floor : float
+        Coldest cold-stream inlet temperature [K]: the hot stream cannot leave below it.
+    """
+
+    fluid: object
+    recuperator: Recuperator
+    hot_in: object
+    colds_of: object
+    T_floor: float
+    calls: int = 0
+
+    def profile(self, duty):
+        self.calls += 1
+        return self.recuperator.profile(self.fluid, self.hot_in, self.colds_of(duty), duty)
+
+    def effectiveness(self, duty):
+        return self.recuperator.effectiveness(self.fluid, self.hot_in, self.colds_of(duty), duty)
+
+    def max_duty(self, limit_effectiveness):
+        """Largest duty the second law allows: the hot stream cooled to the coldest inlet, or
+        (``limit_effectiveness``) the cold streams warmed to the hot inlet temperature."""
+        Q = self.recuperator.max_hot_duty(self.fluid, self.hot_in, self.T_floor)
+        if limit_effectiveness and self.effectiveness(Q) > 1.0:
+            Q = brentq(lambda d: self.effectiveness(d) - 1.0, 0.0, Q, xtol=DUTY_RTOL * Q, rtol=1e-14)
+        return Q
+
+
+def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200):
+    """Find the duty at which a recuperator meets its sizing.
+
+    Parameters
+    ----------
+    section : Section
+    flow_of : callable, optional
+        ``flow_of(duty) -> compressor flow [kg/s]`` (inf where no liquid forms); needed for ``ua``.
+    lowest_duty : float
+        Duty below which no liquid forms (where the flow depends on the yield) [J/kg].
+    xtol : float, optional
+        Absolute tolerance on the duty [J/kg]; default 1e-10 of the largest duty.
+    maxiter : int
+        Passed to :func:`scipy.optimize.brentq`.
+
+    Returns
+    -------
+    duty : float
+    profile : cycle.processes.ExchangerProfile
+    report : cycle.results.SolveReport
+    """
+    rec = section.recuperator
+    spec, key = rec.spec, rec.key
+    mode = spec.mode
+    Q_hi = section.max_duty(limit_effectiveness=mode != "effectiveness")
+    tol = xtol if xtol is not None else DUTY_RTOL * Q_hi
+    root = None
+
+    if mode == "effectiveness":
+        target, unit = spec.effectiveness, "-"
+
+        def residual(duty):
+            section.calls += 1
+            return section.effectiveness(duty) - target
+
+        f_hi = residual(Q_hi)
+        if f_hi < 0:
+            raise NoLiquefactionError(
+                f"{key}.effectiveness {target:g} cannot be reached: the high-pressure stream would have to "
+                f"leave colder than the returning gas ({section.T_floor:.2f} K); the most this exchanger "
+                f"can reach here is {section.effectiveness(Q_hi):.4f}")
+        if f_hi == 0.0:
+            duty = Q_hi
+        else:
+            duty, root = brentq(residual, 0.0, Q_hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
+                                full_output=True, disp=False)
+        res = residual(duty)
+    elif mode == "min_approach":
+        target, unit = spec.min_approach, "K"
+
+        def residual(duty):
+            return section.profile(duty).min_approach - target
+
+        f_hi = residual(Q_hi)
+        if f_hi > -1e-6:  # the streams touch at the largest duty: a zero approach lies there
+            duty = Q_hi
+        else:
+            if residual(0.0) < 0:
+                raise NoLiquefactionError(
+                    f"no liquid: {key}.min_approach {target:g} K is more than the temperature difference "
+                    f"between the high-pressure inlet ({section.hot_in.T:.2f} K) and the returning gas "
+                    f"({section.T_floor:.2f} K)")
+            duty, root = brentq(residual, 0.0, Q_hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
+                                full_output=True, disp=False)
+        res = residual(duty)
+    else:
+        target, unit = spec.ua, "W/K"
+        duty, root = _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter)
+        res = flow_of(duty) * section.profile(duty).ua() - target
+
+    profile = section.profile(duty)
+    report = SolveReport(
+        converged=bool(root.converged) if root is not None else True,
+        iterations=int(root.iterations) if root is not None else 0,
+        function_calls=section.calls,
+        residual=float(res),
+        residual_unit=unit,
+        tolerance=float(tol),
+        message=root.flag if root is not None else "solution at the end of the bracket",
+        tear_variable=f"{key} duty per kg of compressor flow [J/kg]",
+    )
+    return duty, profile, report
+
+
+def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
+    """Duty that a recuperator of the given UA passes."""
+    key = section.recuperator.key
+    target = section.recuperator.spec.ua
+
+    def pinch(duty):
+        return section.profile(duty).min_approach
+
+    # The largest duty the streams allow: where they touch (minimum approach 0).
+    Q_touch = Q_hi if pinch(Q_hi) >= 0 else brentq(pinch, 0.0, Q_hi, xtol=tol, maxiter=maxiter)
+
+    def ua_abs(duty):
+        m = flow_of(duty)
+        return math.inf if not math.isfinite(m) else m * section.profile(duty).ua()
+
+    hi = Q_touch * (1 - 1e-9)
+    lo = 0.0
+    if lowest_duty > 0.0 or not math.isfinite(flow_of(0.0)):
+        # The flow is m_liq / y: UA(Q) falls, then rises as the streams close in.  The design
+        # point is on the rising branch (least compressor flow).
+        found = minimize_scalar(ua_abs, bounds=(lowest_duty + 1e-9 * Q_touch, hi), method="bounded",
+                                options={"xatol": 1e-6 * Q_touch})
+        lo = found.x
+        if found.fun > target:
+            raise NoLiquefactionError(
+                f"{key}.ua {target:g} W/K is too small for this production: the least UA that makes it "
+                f"at these conditions is {found.fun:.4g} W/K (and it needs {flow_of(lo) * 3600:.4g} kg/h "
+                f"of compressor flow)")
+    elif ua_abs(hi) < target:
+        hi = Q_touch
+    return brentq(lambda d: ua_abs(d) - target, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
+                  full_output=True, disp=False)
+
+
+def _combined_report(reports):
+    reports = list(reports)
+    if len(reports) == 1:
+        return reports[0]
+    worst = max(reports, key=lambda r: abs(r.residual))
+    return SolveReport(
+        converged=all(r.converged for r in reports),
+        iterations=sum(r.iterations for r in reports),
+        function_calls=sum(r.function_calls for r in reports),
+        residual=worst.residual, residual_unit=worst.residual_unit,
+        tolerance=max(r.tolerance for r in reports),
+        tear_variable="; ".join(r.tear_variable for r in reports),
+        message="; ".join(r.message for r in reports))
+
+
+# -- the flowsheets -----------------------------------------------------------------------
+
+class Liquefier:
+    """What every layout shares: units, checks, production target, exergy and assembly.
 
     Parameters
     ----------
@@ -91,58 +295,18 @@ class SimpleLindeHampson:
         Defaults to the process-wide fluid object for ``scenario.gas``.
     """
 
+    layout = None
+
     def __init__(self, scenario, fluid=None):
         from properties import get_fluid
 
         self.scenario = sc = scenario
         self.fluid = fluid or get_fluid(sc.gas)
-        rec = sc.recuperator
-        self.suction_pressure = sc.low_pressure - rec.low_side_pressure_drop
+        self.T0 = sc.ambient_temperature
         self.compressor = Compressor(sc.compressor, sc.aftercooler.outlet_temperature, sc.ambient_temperature)
         self.aftercooler = Aftercooler(sc.aftercooler.outlet_temperature, sc.aftercooler.pressure_drop)
-        self.recuperator = Recuperator(rec)
-        self.valve = ThrottleValve(sc.low_pressure)
         self.separator = Separator(sc.low_pressure)
-        self.mixer = MakeupMixer(self.suction_pressure, sc.ambient_temperature)
-
-    # -- checks before solving --------------------------------------------------------
-
-    def _check_pressures(self):
-        fl, sc = self.fluid, self.scenario
-        if sc.low_pressure >= fl.p_critical:
-            raise ScenarioError(f"low_pressure must be below the critical pressure of {fl.name} "
-                                f"({fl.p_critical / 1e5:.4g} bar) for liquid to be drawn, got {sc.low_pressure / 1e5:g} bar")
-        if sc.low_pressure <= fl.p_triple:
-            raise ScenarioError(f"low_pressure must be above the triple-point pressure of {fl.name} "
-                                f"({fl.p_triple / 1e5:.4g} bar), got {sc.low_pressure / 1e5:g} bar")
-        if sc.high_pressure > fl.p_max:
-            raise ScenarioError(f"high_pressure must be at most {fl.p_max / 1e5:g} bar, the limit of the "
-                                f"{fl.name} equation of state, got {sc.high_pressure / 1e5:g} bar")
-
-    def _check_inversion(self, hot_in, return_p):
-        fl = self.fluid
-        T_inv = fl.max_inversion_temperature()
-        if hot_in.T >= T_inv:
-            raise NoLiquefactionError(
-                f"no liquid: the recuperator hot end ({hot_in.T:.1f} K) is above the maximum inversion "
-                f"temperature of {fl.name} ({T_inv:.0f} K), where throttling warms the gas; precooling "
-                f"below that temperature is needed (a precooler before the recuperator's cold section)")
-        warm_return = fl.state_tp(hot_in.T, return_p)
-        if warm_return.h <= hot_in.h:
-            raise NoLiquefactionError(
-                f"no liquid: at {hot_in.T:.1f} K, {fl.name} at {hot_in.p / 1e5:g} bar holds more enthalpy "
-                f"than at the return pressure {return_p / 1e5:g} bar, so even a perfect recuperator makes "
-                f"no liquid (the high pressure lies beyond the inversion curve); lower high_pressure")
-
-    def _keyed_state(self, key, T, p):
-        from properties import PropertyRangeError
-
-        try:
-            return self.fluid.state_tp(T, p)
-        except PropertyRangeError as err:
-            raise ScenarioError(f"{key} {T:g} K gives no valid state at {p / 1e5:g} bar: {err}") from None
-
-    # -- the solve --------------------------------------------------------------------
+        self.valve = ThrottleValve(sc.low_pressure)
 
     def solve(self, xtol=None, maxiter=200):
         """Converge the recycle and return a :class:`~cycle.results.CycleResult`.
@@ -150,7 +314,7 @@ class SimpleLindeHampson:
         Parameters
         ----------
         xtol : float, optional
-            Absolute tolerance on the recuperator duty [J/kg]; default ``1e-10`` times the
+            Absolute tolerance on each recuperator duty [J/kg]; default ``1e-10`` times the
             largest duty the high-pressure stream can give.
         maxiter : int
             Passed to :func:`scipy.optimize.brentq`.
@@ -169,43 +333,87 @@ class SimpleLindeHampson:
         except PropertyRangeError as err:
             raise ScenarioError(f"the scenario asks for a state outside the property range: {err}") from None
 
-    def _solve(self, xtol, maxiter):
-        sc, fl = self.scenario, self.fluid
-        rec = self.recuperator
-        self._check_pressures()
+    # -- checks -----------------------------------------------------------------------
 
-        # Fixed states: the recuperator hot inlet and the separator saturation states.
-        hot_in_ref = self._keyed_state("aftercooler.outlet_temperature", sc.aftercooler.outlet_temperature,
-                                       sc.high_pressure)
-        self._keyed_state("ambient_temperature", sc.ambient_temperature, self.suction_pressure)
-        hot_in, _ = self.aftercooler.run(fl, hot_in_ref)
+    def _keyed_state(self, key, T, p):
+        from properties import PropertyRangeError
+
+        try:
+            return self.fluid.state_tp(T, p)
+        except PropertyRangeError as err:
+            raise ScenarioError(f"{key} {T:g} K gives no valid state at {p / 1e5:g} bar: {err}") from None
+
+    def _fixed_states(self, suction_pressure):
+        """Check pressures and temperatures; return the hot inlet and the saturation states."""
+        fl, sc = self.fluid, self.scenario
+        if sc.low_pressure >= fl.p_critical:
+            raise ScenarioError(f"low_pressure must be below the critical pressure of {fl.name} "
+                                f"({fl.p_critical / 1e5:.4g} bar) for liquid to be drawn, got {sc.low_pressure / 1e5:g} bar")
+        if sc.low_pressure <= fl.p_triple:
+            raise ScenarioError(f"low_pressure must be above the triple-point pressure of {fl.name} "
+                                f"({fl.p_triple / 1e5:.4g} bar), got {sc.low_pressure / 1e5:g} bar")
+        if sc.high_pressure > fl.p_max:
+            raise ScenarioError(f"high_pressure must be at most {fl.p_max / 1e5:g} bar, the limit of the "
+                                f"{fl.name} equation of state, got {sc.high_pressure / 1e5:g} bar")
+        discharge = self._keyed_state("aftercooler.outlet_temperature", sc.aftercooler.outlet_temperature,
+                                      sc.high_pressure)
+        self._keyed_state("ambient_temperature", sc.ambient_temperature, suction_pressure)
+        hot_in, _ = self.aftercooler.run(fl, discharge)
         liquid, vapour = self.separator.saturation(fl)
         for key, T in (("ambient_temperature", sc.ambient_temperature),
-                       ("aftercooler.outlet_temperature", hot_in_ref.T)):
+                       ("aftercooler.outlet_temperature", discharge.T)):
             if T <= vapour.T:
                 raise ScenarioError(f"{key} must be above the boiling temperature of {fl.name} at "
                                     f"low_pressure ({vapour.T:.2f} K), got {T:g} K")
-        return_p = self.suction_pressure
-        self._check_inversion(hot_in, return_p)
+        return hot_in, liquid, vapour
 
-        production = sc.production
-        m_liq = None
-        m_fixed = None
-        if production is not None:
-            if production.compressor_flow is not None:
-                m_fixed = production.compressor_flow
-            elif production.liquid_mass_rate is not None:
-                m_liq = production.liquid_mass_rate
-            else:
-                m_liq = production.liquid_volume_rate * liquid.density
-        Q_leak = sc.heat_leak
+    def _check_inversion(self, hot, return_p, precooled=False):
+        """No liquid if throttling from the recuperator's hot end warms the gas."""
+        fl = self.fluid
+        T_inv = fl.max_inversion_temperature()
+        if hot.T >= T_inv:
+            if precooled:
+                raise ScenarioError(
+                    f"precooling.temperature must be below the maximum inversion temperature of {fl.name} "
+                    f"({T_inv:.0f} K), got {hot.T:g} K")
+            raise NoLiquefactionError(
+                f"no liquid: the recuperator hot end ({hot.T:.1f} K) is above the maximum inversion "
+                f"temperature of {fl.name} ({T_inv:.0f} K), where throttling warms the gas; add a "
+                f"precooling section (precooling: temperature below {T_inv:.0f} K, e.g. a liquid-nitrogen "
+                f"bath) to the scenario")
+        warm_return = fl.state_tp(hot.T, return_p)
+        if warm_return.h <= hot.h:
+            raise NoLiquefactionError(
+                f"no liquid: at {hot.T:.1f} K, {fl.name} at {hot.p / 1e5:g} bar holds more enthalpy "
+                f"than at the return pressure {return_p / 1e5:g} bar, so even a perfect recuperator makes "
+                f"no liquid (the high pressure lies beyond the inversion curve); lower high_pressure")
 
-        def yield_of(duty):
-            h_hp_out = hot_in.h - duty
-            if m_liq is not None:  # the heat leak per kg compressed is Q_leak * y / m_liq
-                return (vapour.h - h_hp_out) / (vapour.h - liquid.h + Q_leak / m_liq)
+    def _production(self, liquid):
+        """(fixed compressor flow [kg/s] or None, liquid mass rate target [kg/s] or None)."""
+        prod = self.scenario.production
+        if prod is None:
+            return None, None
+        if prod.compressor_flow is not None:
+            return prod.compressor_flow, None
+        if prod.liquid_mass_rate is not None:
+            return None, prod.liquid_mass_rate
+        return None, prod.liquid_volume_rate * liquid.density
+
+    def _yield_function(self, liquid, vapour, feed_flow=1.0):
+        """Yield as a function of the enthalpy entering the low-pressure valve.
+
+        ``feed_flow`` of compressor flow [-] reaches the separator; the heat leak is charged
+        there: per kg compressed ``Q_leak / m`` with ``m`` fixed, or ``Q_leak y / m_liq``.
+        """
+        m_fixed, m_liq = self._production(liquid)
+        Q_leak = self.scenario.heat_leak
+        hg, hf = vapour.h, liquid.h
+
+        def yield_of(h_in):
+            if m_liq is not None:
+                return feed_flow * (hg - h_in) / (hg - hf + Q_leak / m_liq)
             q = Q_leak / m_fixed if m_fixed else 0.0
-            return self.separator.liquid_fraction(fl, h_hp_out, q)
+            return (feed_flow * (hg - h_in) - q) / (hg - hf)
 
         def flow_of(y):
             if m_fixed is not None:
@@ -214,164 +422,129 @@ class SimpleLindeHampson:
                 return m_liq / y if y > 0 else math.inf
             return None
 
-        mode = rec.spec.mode
-        counter = {"calls": 0}
+        return yield_of, flow_of
 
-        def profile_at(duty):
-            return rec.profile(fl, hot_in, vapour, 1.0 - yield_of(duty), duty)
-
-        def eps_at(duty):
-            return rec.effectiveness(fl, hot_in, vapour, 1.0 - yield_of(duty), duty)
-
-        # The largest duty the second law allows: the high-pressure stream cooled to the
-        # returning vapour's temperature, or the return gas warmed to the high-pressure inlet
-        # temperature (effectiveness 1), whichever comes first.
-        Q_hi = rec.max_hot_duty(fl, hot_in, vapour)
-        if mode != "effectiveness" and eps_at(Q_hi) > 1.0:
-            Q_hi = brentq(lambda d: eps_at(d) - 1.0, 0.0, Q_hi, xtol=DUTY_RTOL * Q_hi, rtol=1e-14)
-        tol = xtol if xtol is not None else DUTY_RTOL * Q_hi
-
-        def crit_eps():
-            # y = 0 when the high-pressure outlet leaves with h = hg - q (all return flow = 1).
-            q = Q_leak / m_fixed if m_fixed else 0.0
-            if m_liq is not None:
-                q = 0.0
-            return rec.effectiveness(fl, hot_in, vapour, 1.0, hot_in.h - vapour.h + q)
-
-        if mode == "effectiveness":
-            target, unit = rec.spec.effectiveness, "-"
-
-            def residual(duty):
-                counter["calls"] += 1
-                return eps_at(duty) - target
-        elif mode == "min_approach":
-            target, unit = rec.spec.min_approach, "K"
-
-            def residual(duty):
-                counter["calls"] += 1
-                return profile_at(duty).min_approach - target
-        else:
-            target, unit = rec.spec.ua, "W/K"
-
-        if mode == "ua":
-            duty, root = self._solve_ua(fl, profile_at, yield_of, flow_of, Q_hi, tol, maxiter, counter)
-            prof = profile_at(duty)
-            res = flow_of(yield_of(duty)) * prof.ua() - target
-        else:
-            f_hi = residual(Q_hi)
-            if mode == "effectiveness" and f_hi < 0:
-                raise NoLiquefactionError(
-                    f"recuperator.effectiveness {target:g} cannot be reached: the high-pressure stream "
-                    f"would have to leave colder than the returning vapour ({vapour.T:.2f} K); the most "
-                    f"this exchanger can reach here is {eps_at(Q_hi):.4f}")
-            # At the largest duty the streams touch, so a zero minimum approach lies there.
-            if f_hi == 0.0 or (mode == "min_approach" and f_hi > -1e-6):
-                duty, root = Q_hi, None
-            else:
-                if mode == "min_approach" and residual(0.0) < 0:
-                    raise NoLiquefactionError(
-                        f"no liquid: recuperator.min_approach {target:g} K is more than the temperature "
-                        f"difference between the high-pressure inlet ({hot_in.T:.2f} K) and the returning "
-                        f"vapour ({vapour.T:.2f} K)")
-                duty, root = brentq(residual, 0.0, Q_hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
-                                    full_output=True, disp=False)
-            res = residual(duty)
-            prof = profile_at(duty)
-
-        converged = root.converged if root is not None else True
-        report = SolveReport(
-            converged=bool(converged),
-            iterations=int(root.iterations) if root is not None else 0,
-            function_calls=counter["calls"],
-            residual=float(res),
-            residual_unit=unit,
-            tolerance=float(tol),
-            message=(root.flag if root is not None else "solution at the bracket end"),
-        )
-        warn = []
-        if not converged:
-            text = f"recycle solve did not converge after {report.iterations} iterations ({report.message})"
-            warnings.warn(text, RecycleNotConvergedWarning, stacklevel=3)
-            warn.append(text)
-
-        y = yield_of(duty)
-        eps = eps_at(duty)
-        eps_crit = crit_eps()
-        if y <= 0:
-            raise NoLiquefactionError(
-                f"no liquid: the recuperator effectiveness here, {eps:.4f}, is below the critical value "
+    def _critical_message(self, eps, eps_crit, key):
+        return (f"no liquid: the {key} effectiveness here, {eps:.4f}, is below the critical value "
                 f"{eps_crit:.4f} for these pressures and temperatures (and heat leak); raise the "
                 f"effectiveness or the high pressure, or precool")
-        return self._assemble(duty, y, prof, eps, eps_crit, hot_in_ref, hot_in, liquid, vapour,
-                              flow_of(y), report, warn)
 
-    def _solve_ua(self, fl, profile_at, yield_of, flow_of, Q_hi, tol, maxiter, counter):
-        """Solve for the duty that a recuperator of the given UA passes."""
-        target = self.recuperator.spec.ua
-
-        def pinch(duty):
-            counter["calls"] += 1
-            return profile_at(duty).min_approach
-
-        # The largest duty the streams allow: where they touch (minimum approach 0).
-        if pinch(Q_hi) >= 0:
-            Q_touch = Q_hi
-        else:
-            Q_touch = brentq(pinch, 0.0, Q_hi, xtol=tol, maxiter=maxiter)
-
-        def ua_abs(duty):
-            counter["calls"] += 1
-            y = yield_of(duty)
-            m = flow_of(y)
-            if not math.isfinite(m):
-                return math.inf
-            return m * profile_at(duty).ua()
-
-        hi = Q_touch * (1 - 1e-9)
-        if self.scenario.production.compressor_flow is not None:
-            lo = 0.0
-        else:
-            # With a liquid-rate target the flow is m_liq / y: UA(Q) falls, then rises as the
-            # streams close in.  The design point is on the rising branch (least flow).
-            y0 = max(0.0, min(Q_touch, self._duty_for_zero_yield(yield_of, Q_touch)))
-            found = minimize_scalar(ua_abs, bounds=(y0 + 1e-9 * Q_touch, hi), method="bounded",
-                                    options={"xatol": 1e-6 * Q_touch})
-            lo = found.x
-            if found.fun > target:
-                raise NoLiquefactionError(
-                    f"recuperator.ua {target:g} W/K is too small for this production: the least UA that "
-                    f"makes it at these conditions is {found.fun:.4g} W/K (and it needs "
-                    f"{flow_of(yield_of(lo)) * 3600:.4g} kg/h of compressor flow)")
-        duty, root = brentq(lambda d: ua_abs(d) - target, lo, hi, xtol=tol, rtol=1e-14,
-                            maxiter=maxiter, full_output=True, disp=False)
-        return duty, root
+    # -- results ----------------------------------------------------------------------
 
     @staticmethod
-    def _duty_for_zero_yield(yield_of, Q_hi):
-        y_lo, y_hi = yield_of(0.0), yield_of(Q_hi)
-        if y_lo >= 0:
-            return 0.0
-        if y_hi <= 0:
-            return Q_hi
-        return brentq(yield_of, 0.0, Q_hi, xtol=1e-12 * Q_hi)
+    def _recuperator_result(duty, prof, eps, eps_crit):
+        k = prof.min_approach_index
+        return RecuperatorResult(
+            duty=duty, effectiveness=eps, critical_effectiveness=eps_crit, min_approach=prof.min_approach,
+            min_approach_position=float(prof.duty[k] / duty) if duty else 0.0,
+            min_approach_hot_temperature=float(prof.hot_T[k]), ua_per_flow=prof.ua(), profile=prof)
 
-    def _assemble(self, duty, y, prof, eps, eps_crit, hot_in_ref, hot_in, liquid, vapour, m, report, warn):
-        sc, fl = self.scenario, self.fluid
-        rec = self.recuperator
-        hot_p_out, cold_p_out = rec.pressures(hot_in.p, vapour.p)
-        hp_out = fl.state_ph(hot_p_out, hot_in.h - duty)
+    def _exergy_loss(self, ins, outs, heat=()):
+        """Exergy destroyed in a unit, T0 S_gen [J/kg of compressor flow].
+
+        ``ins`` and ``outs`` are ``(state, flow)``; ``heat`` is ``(Q into the unit [J/kg], T of
+        the source [K])``; heat rejected to ambient is negative Q at T0.
+        """
+        T0 = self.T0
+        s_gen = sum(f * st.s for st, f in outs) - sum(f * st.s for st, f in ins)
+        s_gen -= sum(Q / T for Q, T in heat)
+        return T0 * s_gen
+
+    def _finish(self, *, y, m, streams, compressions, after_duty, makeup, liquid, throttle_outlet,
+                recuperators, reports, losses, precooling_work=0.0, precooler_duty=0.0, coolant=None,
+                warn=()):
+        sc = self.scenario
+        warn = list(warn)
+        comp_work = sum(flow * c.work for c, flow in compressions)
+        comp_heat = sum(flow * c.heat_rejected for c, flow in compressions)
+        q_leak = sc.heat_leak / m if m else 0.0
+        # Whole plant: work, make-up gas and heat leak in; liquid and rejected heat out.
+        energy_in = comp_work + y * makeup.h + q_leak
+        energy_out = y * liquid.h + comp_heat + after_duty + precooler_duty
+        balance = (energy_in - energy_out) / comp_work
+        for name, rec in recuperators.items():
+            if rec.min_approach < -1e-6:
+                warn.append(f"temperatures cross inside the {name.replace('_', ' ')} (minimum approach "
+                            f"{rec.min_approach:.3g} K at {rec.min_approach_hot_temperature:.1f} K): effectiveness "
+                            f"{rec.effectiveness:.4g} is not reachable by a real counterflow exchanger here")
+        if throttle_outlet.quality is None:
+            warn.append("the valve outlet is not two-phase: liquid comes only from the margin of heat leak")
+        for name, report in reports.items():
+            if not report.converged:
+                text = (f"recycle solve of the {name.replace('_', ' ')} did not converge after "
+                        f"{report.iterations} iterations ({report.message})")
+                warnings.warn(text, RecycleNotConvergedWarning, stacklevel=4)
+                warn.append(text)
+        states = [StreamState(k, name, st, flow) for k, (name, st, flow) in enumerate(streams, start=1)]
+        return CycleResult(
+            scenario=sc, liquid_yield=y, work_per_kg_compressed=comp_work,
+            ideal_work_per_kg_liquid=ideal_work_of_liquefaction(self.fluid, self.T0, sc.low_pressure),
+            heat_leak_per_kg_compressed=q_leak, compressor_heat_rejected=comp_heat,
+            aftercooler_duty=after_duty, liquid_density=liquid.density, recuperators=recuperators,
+            states=states, throttle_outlet=throttle_outlet, compressor_flow=m,
+            energy_balance_residual=balance, solve=_combined_report(reports.values()), sections=reports,
+            exergy_losses=losses, precooling_work_per_kg_compressed=precooling_work,
+            precooler_duty=precooler_duty, coolant_per_kg_compressed=coolant, warnings=warn)
+
+    def _cold_end_losses(self, y, q_leak, valve_in, valve_out, feed, liquid, vapour, valve="throttle_valve"):
+        """Exergy destroyed in the last valve, the separator and by the heat leak [J/kg compressed].
+
+        ``feed`` of compressor flow passes the valve into the separator; the heat leak ``q_leak``
+        [J/kg compressed] crosses the insulation from ambient to the separator temperature.
+        """
+        return {
+            valve: self._exergy_loss([(valve_in, feed)], [(valve_out, feed)]),
+            "separator": self._exergy_loss([(valve_out, feed)], [(liquid, y), (vapour, feed - y)],
+                                           [(q_leak, vapour.T)]),
+            "heat_leak": q_leak * (self.T0 / vapour.T - 1.0),
+        }
+
+
+class SimpleLindeHampson(Liquefier):
+    """The simple Linde-Hampson liquefier of a :class:`~cycle.scenario.Scenario`."""
+
+    layout = "simple"
+
+    def __init__(self, scenario, fluid=None):
+        super().__init__(scenario, fluid)
+        rec = scenario.recuperator
+        self.suction_pressure = scenario.low_pressure - rec.low_side_pressure_drop
+        self.recuperator = Recuperator(rec)
+        self.mixer = MakeupMixer(self.suction_pressure, scenario.ambient_temperature, scenario.low_pressure)
+
+    def _solve(self, xtol, maxiter):
+        fl, sc, rec = self.fluid, self.scenario, self.recuperator
+        hot_in, liquid, vapour = self._fixed_states(self.suction_pressure)
+        self._check_inversion(hot_in, self.suction_pressure)
+        yield_at, flow_at = self._yield_function(liquid, vapour)
+
+        def yield_of(duty):
+            return yield_at(hot_in.h - duty)
+
+        section = Section(fl, rec, hot_in, lambda d: [(vapour, 1.0 - yield_of(d))], vapour.T)
+        lowest = max(0.0, hot_in.h - vapour.h)  # below this duty no liquid (liquid-rate target)
+        duty, prof, report = solve_section(section, lambda d: flow_at(yield_of(d)), lowest, xtol, maxiter)
+        y = yield_of(duty)
+        eps = section.effectiveness(duty)
+        m_fixed, m_liq = self._production(liquid)
+        q0 = sc.heat_leak / m_fixed if m_fixed else 0.0
+        # y = 0 when the high-pressure outlet leaves with h = hg - q (all the flow returns).
+        eps_crit = rec.effectiveness(fl, hot_in, [(vapour, 1.0)], hot_in.h - vapour.h + q0)
+        if y <= 0:
+            raise NoLiquefactionError(self._critical_message(eps, eps_crit, "recuperator"))
+        m = flow_at(y)
+
+        hp_out = fl.state_ph(rec.hot_outlet_pressure(hot_in.p), hot_in.h - duty)
         valve_out = self.valve.run(fl, hp_out)
-        ret = fl.state_ph(cold_p_out, vapour.h + duty / (1.0 - y))
+        ret = fl.state_ph(rec.cold_outlet_pressure(vapour.p), vapour.h + duty / (1.0 - y))
         makeup = self.mixer.makeup_state(fl)
         suction = self.mixer.run(fl, ret, 1.0 - y, y)
         comp = self.compressor.run(fl, suction, sc.high_pressure)
-        discharge = comp.outlet
-        hp_in, after_duty = self.aftercooler.run(fl, discharge)
-        q_leak = sc.heat_leak / m if m else 0.0
+        hp_in, after_duty = self.aftercooler.run(fl, comp.outlet)
 
-        named = [("compressor suction", suction, 1.0)]
-        named += [(label, st, 1.0) for label, st in comp.states]
-        named += [
+        streams = [("compressor suction", suction, 1.0)]
+        streams += [(label, st, 1.0) for label, st in comp.states]
+        streams += [
             ("aftercooler outlet, recuperator high-pressure inlet", hp_in, 1.0),
             ("recuperator high-pressure outlet, valve inlet", hp_out, 1.0),
             ("valve outlet, separator inlet", valve_out, 1.0),
@@ -380,33 +553,30 @@ class SimpleLindeHampson:
             ("recuperator low-pressure outlet", ret, 1.0 - y),
             ("make-up gas", makeup, y),
         ]
-        states = [StreamState(k, name, st, flow) for k, (name, st, flow) in enumerate(named, start=1)]
+        q_leak = sc.heat_leak / m if m else 0.0
+        losses = {
+            "compressor": self._exergy_loss([(suction, 1.0)], [(hp_in, 1.0)],
+                                            [(-(comp.heat_rejected + after_duty), self.T0)]),
+            "recuperator": self._exergy_loss([(hp_in, 1.0), (vapour, 1.0 - y)], [(hp_out, 1.0), (ret, 1.0 - y)]),
+            "makeup_mixing": self._exergy_loss([(ret, 1.0 - y), (makeup, y)], [(suction, 1.0)]),
+        }
+        losses.update(self._cold_end_losses(y, q_leak, hp_out, valve_out, 1.0, liquid, vapour))
+        return self._finish(
+            y=y, m=m, streams=streams, compressions=[(comp, 1.0)], after_duty=after_duty, makeup=makeup,
+            liquid=liquid, throttle_outlet=valve_out,
+            recuperators={"recuperator": self._recuperator_result(duty, prof, eps, eps_crit)},
+            reports={"recuperator": report}, losses=losses)
 
-        # Whole plant: work, make-up gas and heat leak in; liquid and rejected heat out.
-        energy_in = comp.work + y * makeup.h + q_leak
-        energy_out = y * liquid.h + comp.heat_rejected + after_duty
-        balance = (energy_in - energy_out) / comp.work
 
-        k = prof.min_approach_index
-        recuperator = RecuperatorResult(
-            duty=duty, effectiveness=eps, critical_effectiveness=eps_crit,
-            min_approach=prof.min_approach, min_approach_position=float(prof.duty[k] / duty) if duty else 0.0,
-            min_approach_hot_temperature=float(prof.hot_T[k]), ua_per_flow=prof.ua(), profile=prof)
-        if prof.min_approach < -1e-6:
-            warn.append(f"temperatures cross inside the recuperator (minimum approach {prof.min_approach:.3g} K "
-                        f"at {prof.hot_T[k]:.1f} K): effectiveness {eps:.4g} is not reachable by a real "
-                        f"counterflow exchanger at these conditions")
-        if valve_out.quality is None:
-            warn.append("the valve outlet is not two-phase: liquid comes only from the margin of heat leak")
-        return CycleResult(
-            scenario=sc, liquid_yield=y, work_per_kg_compressed=comp.work,
-            ideal_work_per_kg_liquid=ideal_work_of_liquefaction(fl, sc.ambient_temperature, sc.low_pressure),
-            heat_leak_per_kg_compressed=q_leak, compressor_heat_rejected=comp.heat_rejected,
-            aftercooler_duty=after_duty, liquid_density=liquid.density, recuperator=recuperator,
-            states=states, throttle_outlet=valve_out, compressor_flow=m, energy_balance_residual=balance,
-            solve=report, warnings=warn)
+def build_flowsheet(scenario):
+    """The flowsheet object for a scenario's layout."""
+    from cycle.layouts import DualPressureLindeHampson, PrecooledLindeHampson
+
+    kind = {"simple": SimpleLindeHampson, "precooled": PrecooledLindeHampson,
+            "dual-pressure": DualPressureLindeHampson}[scenario.layout]
+    return kind(scenario)
 
 
 def solve_scenario(scenario, **options):
     """Build the flowsheet for ``scenario`` and solve it; ``options`` go to ``solve``."""
-    return SimpleLindeHampson(scenario).solve(**options)
+    return build_flowsheet(scenario).solve(**options)

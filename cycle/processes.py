@@ -207,3 +207,101 @@ def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out,
     hot_T = np.array([st.T for st in hot] + [hot_in.T])
     cold_T = np.array([cold_in.T] + [st.T for st in cold])
     return ExchangerProfile(q, hot_T, cold_T, p_hot, p_cold)
+
+
+def _h_at(fluid, T, p, state_in):
+    """Enthalpy at (T, p) [J/kg], or the inlet's where T is its temperature; a PT request that
+    lands exactly on the saturation line is nudged by 1e-7 K."""
+    if T <= state_in.T:
+        return state_in.h
+    try:
+        return fluid.state_tp(T, p).h
+    except ValueError:
+        return fluid.state_tp(T * (1 + 1e-9) + 1e-7, p).h
+
+
+def composite_profile(fluid, hot_in, hot_p_out, hot_flow, colds, duty, zones):
+    """March a counterflow exchanger with one hot stream and several cold streams.
+
+    The cold streams are lumped into one composite curve: each takes heat from its own inlet
+    temperature up, and all leave at one common warm-end temperature (parallel passages in a
+    multi-stream exchanger).  A cold stream's pressure falls linearly with its temperature
+    between inlet and outlet; the hot stream's falls in proportion to the duty passed.
+
+    Parameters
+    ----------
+    fluid : properties.Fluid
+    hot_in : properties.State
+        Hot stream at its inlet (the warm end).
+    hot_p_out : float
+        Hot stream outlet pressure [Pa].
+    hot_flow : float
+        Hot stream flow per kg of compressor flow [-].
+    colds : sequence of (properties.State, float, float)
+        Each cold stream's inlet state, outlet pressure [Pa] and flow [-].
+    duty : float
+        Heat passed [J per kg of compressor flow].
+    zones : int
+        Number of equal-duty zones.
+
+    Returns
+    -------
+    ExchangerProfile
+        ``cold_T`` is the composite temperature; ``cold_p`` the pressure of the first cold stream.
+
+    References
+    ----------
+    B. Linnhoff et al., *A User Guide on Process Integration for the Efficient Use of Energy*,
+    IChemE, 1982 (composite curves of several streams).
+    """
+    from scipy.optimize import brentq
+
+    T_low = min(st.T for st, _, _ in colds)
+
+    def absorbed(T, T_out):
+        total = 0.0
+        for st, p_out, flow in colds:
+            if T <= st.T:
+                continue
+            span = T_out - st.T
+            p = p_out if span <= 0 else st.p + (p_out - st.p) * min(1.0, (T - st.T) / span)
+            total += flow * (_h_at(fluid, T, p, st) - st.h)
+        return total
+
+    def outlet_absorbed(T):
+        return sum(flow * (_h_at(fluid, T, p_out, st) - st.h) for st, p_out, flow in colds)
+
+    T_top = hot_in.T
+    if outlet_absorbed(T_top) < duty:  # a temperature cross: the cold side must leave above the hot inlet
+        T_top = hot_in.T * 1.5
+    if duty <= 0:
+        T_out = T_low
+    else:
+        T_out = brentq(lambda T: outlet_absorbed(T) - duty, T_low, T_top, xtol=1e-9, rtol=1e-13)
+
+    frac = np.linspace(0.0, 1.0, zones + 1)
+    q = duty * frac
+    h_hot = (hot_in.h - duty / hot_flow) + q / hot_flow
+    p_hot = hot_p_out + frac * (hot_in.p - hot_p_out)
+    hot = fluid.states_ph(p_hot[:-1], h_hot[:-1])
+    hot_T = np.array([st.T for st in hot] + [hot_in.T])
+    cold_T = np.empty(zones + 1)
+    cold_T[0], cold_T[-1] = T_low, T_out
+    for k in range(1, zones):
+        cold_T[k] = brentq(lambda T: absorbed(T, T_out) - q[k], T_low, T_out, xtol=1e-9, rtol=1e-13)
+    first, p_first, _ = colds[0]
+    span = max(T_out - first.T, 1e-12)
+    cold_p = first.p + (p_first - first.p) * np.clip((cold_T - first.T) / span, 0.0, 1.0)
+    return ExchangerProfile(q, hot_T, cold_T, p_hot, cold_p)
+
+
+def carnot_cop(T_cold, T_hot):
+    """Coefficient of performance of a Carnot refrigerator lifting heat from ``T_cold`` to
+    ``T_hot`` [K]: T_cold / (T_hot - T_cold) [-]."""
+    return T_cold / (T_hot - T_cold)
+
+
+def refrigeration_exergy(duty, T_cold, T0):
+    """Exergy of ``duty`` [J/kg] of refrigeration delivered at ``T_cold`` [K] with surroundings at
+    ``T0`` [K]: duty (T0 / T_cold - 1), the least work that can provide it [J/kg]."""
+    return duty * (T0 / T_cold - 1.0)

@@ -11,34 +11,72 @@ def _line(label, value, unit="", fmt="{:.4g}"):
     return f"  {label:<44s} {text:>12s} {unit}".rstrip()
 
 
+def _mode_text(spec):
+    if spec.mode == "effectiveness":
+        return f"effectiveness {spec.effectiveness:g}"
+    if spec.mode == "min_approach":
+        return f"minimum approach {spec.min_approach:g} K"
+    return f"UA {spec.ua:g} W/K"
+
+
+def _layout_text(sc):
+    if sc.layout == "precooled":
+        pc = sc.precooling
+        how = (f"{pc.coolant} bath at {pc.coolant_pressure / 1e5:g} bar" if pc.coolant
+               else f"refrigerator COP {pc.refrigerator_cop:g}" if pc.refrigerator_cop is not None
+               else f"refrigerator at {pc.refrigerator_carnot_fraction:g} of Carnot")
+        return (f"precooled to {pc.temperature:g} K ({how}); warm recuperator by "
+                f"{_mode_text(sc.warm_recuperator)}, cold recuperator by {_mode_text(sc.cold_recuperator)}")
+    if sc.layout == "dual-pressure":
+        dp = sc.dual_pressure
+        return (f"dual pressure, {dp.intermediate_pressure / 1e5:g} bar intermediate, "
+                f"{dp.recirculated_fraction:g} recirculated; recuperator by {_mode_text(sc.recuperator)}")
+    return f"simple cycle; recuperator by {_mode_text(sc.recuperator)}"
+
+
 def format_result(result):
-    """The design point as readable text: headline numbers, sizing, solve and state table."""
+    """The design point as readable text: headline numbers, sizing, losses, solve and state table."""
     sc = result.scenario
     s = result.summary()
     out = [f"lhsim design point: {sc.name or 'unnamed scenario'}",
            f"  {sc.gas}, {sc.low_pressure / 1e5:g} -> {sc.high_pressure / 1e5:g} bar, "
-           f"ambient {sc.ambient_temperature:g} K, recuperator by {sc.recuperator.mode.replace('_', ' ')}",
+           f"ambient {sc.ambient_temperature:g} K",
+           f"  {_layout_text(sc)}",
            "", "Performance"]
     out += [
         _line("liquid yield (liquid / compressor flow)", s["liquid_yield"], "", "{:.5f}"),
         _line("work per kg compressed", s["work_kJ_per_kg_compressed"], "kJ/kg", "{:.1f}"),
         _line("work per kg liquid", s["work_kJ_per_kg_liquid"], "kJ/kg", "{:.0f}"),
+    ]
+    if sc.layout == "precooled":
+        out += [
+            _line("  of which compressor", s["compressor_work_kJ_per_kg_liquid"], "kJ/kg", "{:.0f}"),
+            _line("  of which precooling", s["precooling_work_kJ_per_kg_liquid"], "kJ/kg", "{:.0f}"),
+        ]
+    out += [
         _line("ideal work of liquefaction", s["ideal_work_kJ_per_kg_liquid"], "kJ/kg", "{:.1f}"),
         _line("figure of merit", s["figure_of_merit"], "", "{:.4f}"),
         _line("throttle outlet temperature", s["throttle_outlet_temperature_K"], "K", "{:.2f}"),
         _line("throttle outlet quality (vapour fraction)", s["throttle_outlet_quality"], "", "{:.4f}"),
     ]
-    out += ["", "Recuperator"]
-    out += [
-        _line("effectiveness", s["recuperator_effectiveness"], "", "{:.4f}"),
-        _line("critical effectiveness (no liquid below)", s["recuperator_critical_effectiveness"], "", "{:.4f}"),
-        _line("minimum approach", s["recuperator_min_approach_K"], "K", "{:.2f}"),
-        _line("  at fraction of duty from cold end", s["recuperator_min_approach_position"], "", "{:.2f}"),
-        _line("warm-end / cold-end approach",
-              f"{s['recuperator_warm_end_approach_K']:.2f} / {s['recuperator_cold_end_approach_K']:.2f}", "K"),
-        _line("duty per kg compressed", s["recuperator_duty_kJ_per_kg_compressed"], "kJ/kg", "{:.2f}"),
-        _line("UA per unit compressor flow", s["recuperator_UA_W_per_K_per_kg_per_s"], "W/K per kg/s", "{:.0f}"),
-    ]
+    if sc.layout == "precooled":
+        out += ["", "Precooling"]
+        out.append(_line("precooler duty per kg compressed", s["precooler_duty_kJ_per_kg_compressed"], "kJ/kg", "{:.2f}"))
+        if "coolant_kg_per_kg_liquid" in s:
+            out.append(_line(f"{sc.precooling.coolant} boiled off per kg liquid", s["coolant_kg_per_kg_liquid"], "kg/kg", "{:.3f}"))
+    for name in result.recuperators:
+        title = name.replace("_", " ").capitalize()
+        out += ["", title]
+        out += [
+            _line("effectiveness", s[f"{name}_effectiveness"], "", "{:.4f}"),
+            _line("critical effectiveness (no liquid below)", s[f"{name}_critical_effectiveness"], "", "{:.4f}"),
+            _line("minimum approach", s[f"{name}_min_approach_K"], "K", "{:.2f}"),
+            _line("  at fraction of duty from cold end", s[f"{name}_min_approach_position"], "", "{:.2f}"),
+            _line("warm-end / cold-end approach",
+                  f"{s[f'{name}_warm_end_approach_K']:.2f} / {s[f'{name}_cold_end_approach_K']:.2f}", "K"),
+            _line("duty per kg compressed", s[f"{name}_duty_kJ_per_kg_compressed"], "kJ/kg", "{:.2f}"),
+            _line("UA per unit compressor flow", s[f"{name}_UA_W_per_K_per_kg_per_s"], "W/K per kg/s", "{:.0f}"),
+        ]
     if "compressor_flow_kg_per_h" in s:
         out += ["", "Production"]
         out += [
@@ -46,11 +84,18 @@ def format_result(result):
             _line("liquid rate", s["liquid_rate_kg_per_h"], "kg/h", "{:.3f}"),
             _line("liquid rate (saturated liquid)", s["liquid_rate_L_per_h"], "L/h", "{:.3f}"),
             _line("compressor power", s["compressor_power_kW"], "kW", "{:.3f}"),
+        ]
+        if sc.layout == "precooled":
+            out.append(_line("precooling power (work charged)", s["precooling_power_kW"], "kW", "{:.3f}"))
+            if "coolant_kg_per_h" in s:
+                out.append(_line(f"{sc.precooling.coolant} boiled off", s["coolant_kg_per_h"], "kg/h", "{:.3f}"))
+        out += [
             _line("heat rejected (compressor and aftercooler)", s["heat_rejected_kW"], "kW", "{:.3f}"),
-            _line("recuperator duty", s["recuperator_duty_kW"], "kW", "{:.3f}"),
-            _line("recuperator UA", s["recuperator_UA_W_per_K"], "W/K", "{:.1f}"),
+            _line("recuperator duty (all recuperators)", s["recuperator_duty_kW"], "kW", "{:.3f}"),
+            _line("recuperator UA (all recuperators)", s["recuperator_UA_W_per_K"], "W/K", "{:.1f}"),
             _line("cold-box heat leak", s["heat_leak_W"], "W", "{:.3g}"),
         ]
+    out += ["", "Where the work goes (exergy, per kg of liquid)", format_exergy(result)]
     sol = result.solve
     out += ["", "Solve",
             f"  recycle {'converged' if sol.converged else 'NOT converged'} in {sol.iterations} iterations "
@@ -60,6 +105,18 @@ def format_result(result):
     if result.warnings:
         out += ["", "Warnings"] + [f"  - {w}" for w in result.warnings]
     return "\n".join(out)
+
+
+def format_exergy(result):
+    """Ideal work and each unit's exergy loss, largest first, with shares of the actual work."""
+    total = result.work_per_kg_liquid
+    rows = [("ideal work of liquefaction", result.ideal_work_per_kg_liquid)]
+    rows += [(name.replace("_", " "), value) for name, value in result.exergy_losses_per_kg_liquid().items()]
+    lines = [f"  {'':<44s} {'kJ/kg':>12s} {'share':>7s}"]
+    for label, value in rows:
+        lines.append(f"  {label:<44s} {value / 1e3:12.1f} {100 * value / total:6.1f} %")
+    lines.append(f"  {'actual work (sum)':<44s} {total / 1e3:12.1f} {100.0:6.1f} %")
+    return "\n".join(lines)
 
 
 def _state_table(result):

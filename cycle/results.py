@@ -72,8 +72,9 @@ class RecuperatorResult:
         Heat passed from the high-pressure stream [J/kg of compressor flow].
     effectiveness : float
         Low-pressure-stream enthalpy rise over its rise to the high-pressure inlet temperature [-].
-    critical_effectiveness : float
-        Effectiveness below which the cycle makes no liquid at these conditions [-].
+    critical_effectiveness : float or None
+        Effectiveness below which the cycle makes no liquid at these conditions [-]; None for
+        a recuperator whose size does not decide whether liquid forms (the warm one).
     min_approach : float
         Smallest temperature difference between the streams over the zone boundaries [K].
     min_approach_position : float
@@ -87,7 +88,7 @@ class RecuperatorResult:
 
     duty: float
     effectiveness: float
-    critical_effectiveness: float
+    critical_effectiveness: Optional[float]
     min_approach: float
     min_approach_position: float
     min_approach_hot_temperature: float
@@ -106,7 +107,8 @@ class RecuperatorResult:
 @dataclass(frozen=True)
 class CycleResult:
     """A solved Linde-Hampson design point.  Specific quantities are per kg of compressor
-    flow unless the name says per kg of liquid; all in SI (J/kg, K, Pa, kg/s, W).
+    flow (for the dual-pressure cycle: of the flow compressed to the high pressure) unless the
+    name says per kg of liquid; all in SI (J/kg, K, Pa, kg/s, W).
 
     Attributes
     ----------
@@ -115,6 +117,8 @@ class CycleResult:
         Liquid mass flow over compressor mass flow [-].
     work_per_kg_compressed : float
         Compressor shaft work [J/kg of compressor flow].
+    precooling_work_per_kg_compressed : float
+        Work charged for precooling (coolant or refrigerator) [J/kg of compressor flow].
     ideal_work_per_kg_liquid : float
         Minimum work of liquefaction, T0 (s1 - sf) - (h1 - hf) [J/kg of liquid].
     heat_leak_per_kg_compressed : float
@@ -123,16 +127,27 @@ class CycleResult:
         Heat rejected by the compressor and its intercoolers [J/kg of compressor flow].
     aftercooler_duty : float
         [J/kg of compressor flow].
+    precooler_duty : float
+        Heat taken from the high-pressure stream in the precooler [J/kg of compressor flow].
+    coolant_per_kg_compressed : float or None
+        Coolant boiled off [kg per kg of compressor flow], for a coolant bath.
     liquid_density : float
         Saturated liquid density at the low pressure [kg/m3].
-    recuperator : RecuperatorResult
+    recuperators : dict of str to RecuperatorResult
+        ``recuperator``, or ``warm_recuperator`` and ``cold_recuperator``.
     states : list of StreamState
     throttle_outlet : properties.State
+        State entering the separator.
     compressor_flow : float or None
         Compressor mass flow [kg/s], with a production target.
     energy_balance_residual : float
         (energy in - energy out) of the whole plant over the compressor work [-].
+    exergy_losses : dict of str to float
+        Exergy destroyed in each unit [J/kg of compressor flow].
     solve : SolveReport
+        The recycle solve (for two recuperators, the combined count and the worse residual).
+    sections : dict of str to SolveReport
+        One solve report per recuperator.
     warnings : list of str
     """
 
@@ -144,60 +159,103 @@ class CycleResult:
     compressor_heat_rejected: float
     aftercooler_duty: float
     liquid_density: float
-    recuperator: RecuperatorResult
+    recuperators: dict
     states: list
     throttle_outlet: object
     compressor_flow: Optional[float]
     energy_balance_residual: float
     solve: SolveReport
+    exergy_losses: dict = field(default_factory=dict)
+    sections: dict = field(default_factory=dict)
+    precooling_work_per_kg_compressed: float = 0.0
+    precooler_duty: float = 0.0
+    coolant_per_kg_compressed: Optional[float] = None
     warnings: list = field(default_factory=list)
 
     @property
+    def recuperator(self):
+        """The recuperator of a one-recuperator cycle, or the cold one of a precooled cycle."""
+        return self.recuperators.get("recuperator") or self.recuperators["cold_recuperator"]
+
+    @property
+    def total_work_per_kg_compressed(self):
+        """Compressor plus precooling work [J/kg of compressor flow]."""
+        return self.work_per_kg_compressed + self.precooling_work_per_kg_compressed
+
+    @property
     def work_per_kg_liquid(self):
-        """Compressor work per kg of liquid [J/kg]."""
-        return self.work_per_kg_compressed / self.liquid_yield
+        """All work charged to the product, per kg of liquid [J/kg]."""
+        return self.total_work_per_kg_compressed / self.liquid_yield
 
     @property
     def figure_of_merit(self):
         """Ideal work over actual work, both per kg of liquid [-]."""
         return self.ideal_work_per_kg_liquid / self.work_per_kg_liquid
 
+    def exergy_losses_per_kg_liquid(self):
+        """Exergy destroyed in each unit [J/kg of liquid], largest first."""
+        items = sorted(self.exergy_losses.items(), key=lambda kv: -kv[1])
+        return {name: value / self.liquid_yield for name, value in items}
+
     def summary(self):
         """The headline numbers, keyed by name with the unit at the end of the name."""
-        rec = self.recuperator
+        y = self.liquid_yield
         out = {
-            "liquid_yield": self.liquid_yield,
-            "work_kJ_per_kg_compressed": self.work_per_kg_compressed / 1e3,
+            "liquid_yield": y,
+            "work_kJ_per_kg_compressed": self.total_work_per_kg_compressed / 1e3,
             "work_kJ_per_kg_liquid": self.work_per_kg_liquid / 1e3,
+            "compressor_work_kJ_per_kg_liquid": self.work_per_kg_compressed / y / 1e3,
+            "precooling_work_kJ_per_kg_liquid": self.precooling_work_per_kg_compressed / y / 1e3,
             "ideal_work_kJ_per_kg_liquid": self.ideal_work_per_kg_liquid / 1e3,
             "figure_of_merit": self.figure_of_merit,
-            "recuperator_effectiveness": rec.effectiveness,
-            "recuperator_critical_effectiveness": rec.critical_effectiveness,
-            "recuperator_min_approach_K": rec.min_approach,
-            "recuperator_min_approach_position": rec.min_approach_position,
-            "recuperator_warm_end_approach_K": rec.warm_end_approach,
-            "recuperator_cold_end_approach_K": rec.cold_end_approach,
-            "recuperator_duty_kJ_per_kg_compressed": rec.duty / 1e3,
-            "recuperator_UA_W_per_K_per_kg_per_s": _finite_or_none(rec.ua_per_flow),
+            "precooler_duty_kJ_per_kg_compressed": self.precooler_duty / 1e3,
+        }
+        if self.coolant_per_kg_compressed is not None:
+            out["coolant_kg_per_kg_liquid"] = self.coolant_per_kg_compressed / y
+        for name, rec in self.recuperators.items():
+            out.update({
+                f"{name}_effectiveness": rec.effectiveness,
+                f"{name}_critical_effectiveness": rec.critical_effectiveness,
+                f"{name}_min_approach_K": rec.min_approach,
+                f"{name}_min_approach_position": rec.min_approach_position,
+                f"{name}_warm_end_approach_K": rec.warm_end_approach,
+                f"{name}_cold_end_approach_K": rec.cold_end_approach,
+                f"{name}_duty_kJ_per_kg_compressed": rec.duty / 1e3,
+                f"{name}_UA_W_per_K_per_kg_per_s": _finite_or_none(rec.ua_per_flow),
+            })
+        recs = list(self.recuperators.values())
+        if "recuperator" not in self.recuperators:  # totals over the recuperators
+            out["recuperator_min_approach_K"] = min(r.min_approach for r in recs)
+            out["recuperator_duty_kJ_per_kg_compressed"] = sum(r.duty for r in recs) / 1e3
+            out["recuperator_UA_W_per_K_per_kg_per_s"] = _finite_or_none(sum(r.ua_per_flow for r in recs))
+        out.update({
             "throttle_outlet_temperature_K": self.throttle_outlet.T,
             "throttle_outlet_quality": self.throttle_outlet.quality,
             "heat_rejected_kJ_per_kg_compressed": (self.compressor_heat_rejected + self.aftercooler_duty) / 1e3,
             "energy_balance_residual": self.energy_balance_residual,
-        }
+        })
         m = self.compressor_flow
         if m is not None:
-            m_liq = m * self.liquid_yield
+            m_liq = m * y
             out.update({
                 "compressor_flow_kg_per_h": m * 3600.0,
                 "liquid_rate_kg_per_h": m_liq * 3600.0,
                 "liquid_rate_L_per_h": m_liq / self.liquid_density * 3.6e6,
                 "compressor_power_kW": m * self.work_per_kg_compressed / 1e3,
+                "precooling_power_kW": m * self.precooling_work_per_kg_compressed / 1e3,
                 "aftercooler_duty_kW": m * self.aftercooler_duty / 1e3,
                 "heat_rejected_kW": m * (self.compressor_heat_rejected + self.aftercooler_duty) / 1e3,
-                "recuperator_duty_kW": m * rec.duty / 1e3,
-                "recuperator_UA_W_per_K": _finite_or_none(m * rec.ua_per_flow),
+                "precooler_duty_kW": m * self.precooler_duty / 1e3,
+                "recuperator_duty_kW": m * sum(r.duty for r in recs) / 1e3,
+                "recuperator_UA_W_per_K": _finite_or_none(m * sum(r.ua_per_flow for r in recs)),
                 "heat_leak_W": self.scenario.heat_leak,
             })
+            if len(recs) > 1:
+                for name, rec in self.recuperators.items():
+                    out[f"{name}_UA_W_per_K"] = _finite_or_none(m * rec.ua_per_flow)
+                    out[f"{name}_duty_kW"] = m * rec.duty / 1e3
+            if self.coolant_per_kg_compressed is not None:
+                out["coolant_kg_per_h"] = m * self.coolant_per_kg_compressed * 3600.0
         return out
 
     def state_rows(self):
@@ -228,9 +286,9 @@ class CycleResult:
 
         return pd.DataFrame(self.state_rows()).set_index("number")
 
-    def profile_rows(self):
-        """The recuperator profile: duty from the cold end and both stream temperatures."""
-        prof = self.recuperator.profile
+    def profile_rows(self, name=None):
+        """A recuperator profile: duty from the cold end and the stream temperatures."""
+        prof = (self.recuperators[name] if name else self.recuperator).profile
         return [{"duty_kJ_per_kg_compressed": float(q) / 1e3, "high_pressure_temperature_K": float(th),
                  "low_pressure_temperature_K": float(tc)}
                 for q, th, tc in zip(prof.duty, prof.hot_T, prof.cold_T)]
@@ -239,11 +297,13 @@ class CycleResult:
         """Everything ``lhsim run --json`` prints."""
         return {
             "scenario": self.scenario.to_dict(),
+            "layout": self.scenario.layout,
             "summary": self.summary(),
+            "exergy_losses_kJ_per_kg_liquid": {k: v / 1e3 for k, v in self.exergy_losses_per_kg_liquid().items()},
             "states": self.state_rows(),
             "warnings": list(self.warnings),
-            "solve": self.solve.to_dict(),
-            "recuperator_profile": self.profile_rows(),
+            "solve": dict(self.solve.to_dict(), sections={k: r.to_dict() for k, r in self.sections.items()}),
+            "recuperator_profiles": {name: self.profile_rows(name) for name in self.recuperators},
         }
 
 

@@ -67,6 +67,43 @@ class ProductionSpec:
 
 
 @dataclass(frozen=True)
+class PrecoolingSpec:
+    """Precooler between the warm and cold recuperators.
+
+    Attributes
+    ----------
+    temperature : float
+        High-pressure stream temperature leaving the precooler [K].
+    coolant : str or None
+        CoolProp name of a boiling-bath coolant, or None for a refrigerator.
+    coolant_pressure : float
+        Bath pressure [Pa].
+    coolant_work : float or None
+        Work charged per kg of coolant boiled off [J/kg]; None means the coolant's ideal work
+        of liquefaction (a lower bound).
+    refrigerator_cop : float or None
+        Coefficient of performance of a precooling refrigerator rejecting heat at ambient [-].
+    refrigerator_carnot_fraction : float or None
+        Its COP as a fraction of the Carnot COP between the precooling temperature and ambient [-].
+    """
+
+    temperature: float
+    coolant: Optional[str] = None
+    coolant_pressure: float = 101325.0
+    coolant_work: Optional[float] = None
+    refrigerator_cop: Optional[float] = None
+    refrigerator_carnot_fraction: Optional[float] = None
+
+
+@dataclass(frozen=True)
+class DualPressureSpec:
+    """Intermediate pressure [Pa] and the fraction of compressor flow returned at it [-]."""
+
+    intermediate_pressure: float
+    recirculated_fraction: float
+
+
+@dataclass(frozen=True)
 class Scenario:
     """A validated scenario in SI units (K, Pa, W, kg/s)."""
 
@@ -80,16 +117,31 @@ class Scenario:
     heat_leak: float = 0.0
     production: Optional[ProductionSpec] = None
     name: str = ""
+    precooling: Optional[PrecoolingSpec] = None
+    warm_recuperator: Optional[RecuperatorSpec] = None
+    cold_recuperator: Optional[RecuperatorSpec] = None
+    dual_pressure: Optional[DualPressureSpec] = None
     source: dict = field(default_factory=dict, compare=False, repr=False)
+
+    @property
+    def layout(self):
+        """``simple``, ``precooled`` or ``dual-pressure``."""
+        if self.precooling is not None:
+            return "precooled"
+        if self.dual_pressure is not None:
+            return "dual-pressure"
+        return "simple"
 
     def to_dict(self):
         """The scenario in SI numbers, defaults filled in, without the source mapping."""
         out = asdict(self)
         out.pop("source")
-        out["compressor"] = {k: v for k, v in out["compressor"].items() if v is not None}
-        out["recuperator"] = {k: v for k, v in out["recuperator"].items() if v is not None}
-        if out["production"] is not None:
-            out["production"] = {k: v for k, v in out["production"].items() if v is not None}
+        for key, value in list(out.items()):
+            if isinstance(value, dict):
+                out[key] = {k: v for k, v in value.items() if v is not None}
+            elif value is None and key in ("precooling", "warm_recuperator", "cold_recuperator",
+                                           "dual_pressure", "recuperator"):
+                del out[key]
         return out
 
 
@@ -121,11 +173,28 @@ SCHEMA = {
         "low_side_pressure_drop": "pressure",
     },
     "heat_leak": "power",
+    "precooling": {
+        "temperature": "temperature",
+        "coolant": "text",
+        "coolant_pressure": "pressure",
+        "coolant_work": "specific_energy",
+        "refrigerator_cop": "number",
+        "refrigerator_carnot_fraction": "number",
+    },
+    "warm_recuperator": "recuperator",
+    "cold_recuperator": "recuperator",
+    "dual_pressure": {
+        "intermediate_pressure": "pressure",
+        "recirculated_fraction": "number",
+    },
     "production": {
         "liquid_rate": ("mass_flow", "volume_flow"),
         "compressor_flow": "mass_flow",
     },
 }
+
+for _key in ("warm_recuperator", "cold_recuperator"):
+    SCHEMA[_key] = SCHEMA["recuperator"]
 
 _EXAMPLES = {
     "temperature": "'300 K'",
@@ -135,6 +204,7 @@ _EXAMPLES = {
     "volume_flow": "'10 L/h'",
     "temperature_difference": "'2 K'",
     "thermal_conductance": "'500 W/K'",
+    "specific_energy": "'770 kJ/kg'",
 }
 
 
@@ -269,7 +339,42 @@ def parse_scenario(data):
 
     compressor = _parse_compressor(data.get("compressor"))
     aftercooler = _parse_aftercooler(data.get("aftercooler") or {}, T0, p_high, p_low)
-    recuperator = _parse_recuperator(data.get("recuperator"), p_high - aftercooler.pressure_drop, p_low)
+    p_hot_in = p_high - aftercooler.pressure_drop
+    precooling = _parse_precooling(data.get("precooling"), aftercooler.outlet_temperature)
+    dual = _parse_dual_pressure(data.get("dual_pressure"), p_low, p_hot_in)
+    if precooling is not None and dual is not None:
+        raise ScenarioError("give precooling or dual_pressure, not both (a precooled dual-pressure "
+                            "cycle is not modelled yet)")
+    warm = cold = None
+    if precooling is None:
+        for key in ("warm_recuperator", "cold_recuperator"):
+            if data.get(key) is not None:
+                raise ScenarioError(f"{key} needs precooling: without a precooler there is one recuperator, "
+                                    f"give it as recuperator")
+        recuperator = _parse_recuperator(data.get("recuperator"), p_hot_in, p_low)
+    else:
+        recuperator = None
+        if data.get("recuperator") is not None:
+            recuperator = _parse_recuperator(data["recuperator"], p_hot_in, p_low)
+        sides = {}
+        for key in ("warm_recuperator", "cold_recuperator"):
+            if data.get(key) is not None:
+                sides[key] = _parse_recuperator(data[key], p_hot_in, p_low, key)
+            elif recuperator is not None:
+                sides[key] = recuperator
+            else:
+                raise ScenarioError(f"missing {key}: with precooling give recuperator (for both "
+                                    f"recuperators) or warm_recuperator and cold_recuperator")
+        warm, cold = sides["warm_recuperator"], sides["cold_recuperator"]
+        if warm.low_side_pressure_drop + cold.low_side_pressure_drop >= p_low:
+            raise ScenarioError("warm_recuperator.low_side_pressure_drop plus cold_recuperator."
+                                f"low_side_pressure_drop must be below low_pressure ({_bar(p_low)})")
+        if warm.high_side_pressure_drop + cold.high_side_pressure_drop >= p_hot_in - p_low:
+            raise ScenarioError("the recuperators' high_side_pressure_drop together must leave the "
+                                "high-pressure stream above low_pressure")
+    if dual is not None and dual.intermediate_pressure - recuperator.low_side_pressure_drop <= p_low:
+        raise ScenarioError("dual_pressure.intermediate_pressure less recuperator.low_side_pressure_drop "
+                            f"must stay above low_pressure ({_bar(p_low)})")
 
     production = _parse_production(data.get("production"))
     heat_leak = 0.0
@@ -279,13 +384,77 @@ def parse_scenario(data):
             raise ScenarioError(f"heat_leak must be 0 or more, got {data['heat_leak']!r}")
     if heat_leak > 0 and production is None:
         raise ScenarioError("heat_leak needs production: give production.liquid_rate or production.compressor_flow")
-    if recuperator.ua is not None and production is None:
-        raise ScenarioError("recuperator.ua needs production: give production.liquid_rate or "
-                            "production.compressor_flow (UA is an absolute size, W/K)")
+    for key in ("recuperator", "warm_recuperator", "cold_recuperator"):
+        spec = data.get(key)
+        if isinstance(spec, dict) and spec.get("ua") is not None and production is None:
+            raise ScenarioError(f"{key}.ua needs production: give production.liquid_rate or "
+                                "production.compressor_flow (UA is an absolute size, W/K)")
 
     return Scenario(gas=gas, ambient_temperature=T0, low_pressure=p_low, high_pressure=p_high,
                     compressor=compressor, aftercooler=aftercooler, recuperator=recuperator,
-                    heat_leak=heat_leak, production=production, name=name, source=dict(data))
+                    heat_leak=heat_leak, production=production, name=name, precooling=precooling,
+                    warm_recuperator=warm, cold_recuperator=cold, dual_pressure=dual, source=dict(data))
+
+
+def _parse_precooling(section, T_hot):
+    if section is None:
+        return None
+    if section.get("temperature") is None:
+        raise ScenarioError("missing precooling.temperature: expected the temperature the precooler "
+                            "brings the high-pressure stream to, such as '80 K'")
+    T = _quantity(section, "temperature", "temperature", "precooling.temperature")
+    if not 0 < T < T_hot:
+        raise ScenarioError(f"precooling.temperature must be above 0 and below the aftercooler outlet "
+                            f"temperature ({T_hot:g} K), got {section['temperature']!r}")
+    kind = _exactly_one(section, ["coolant", "refrigerator_cop", "refrigerator_carnot_fraction"], "precooling")
+    values = {"temperature": T}
+    if kind != "coolant":
+        for key in ("coolant_pressure", "coolant_work"):
+            if section.get(key) is not None:
+                raise ScenarioError(f"precooling.{key} goes with precooling.coolant, not with precooling.{kind}")
+    if kind == "coolant":
+        from properties.fluids import resolve_fluid_name
+
+        try:
+            values["coolant"] = resolve_fluid_name(str(section["coolant"]))
+        except ValueError as err:
+            raise ScenarioError(f"precooling.coolant: {err}".replace("gas must be", "expected")) from None
+        if section.get("coolant_pressure") is not None:
+            pc = _quantity(section, "coolant_pressure", "pressure", "precooling.coolant_pressure")
+            if pc <= 0:
+                raise ScenarioError(f"precooling.coolant_pressure must be above 0, got {section['coolant_pressure']!r}")
+            values["coolant_pressure"] = pc
+        if section.get("coolant_work") is not None:
+            w = _quantity(section, "coolant_work", "specific_energy", "precooling.coolant_work")
+            if w <= 0:
+                raise ScenarioError(f"precooling.coolant_work must be above 0, got {section['coolant_work']!r}")
+            values["coolant_work"] = w
+    elif kind == "refrigerator_cop":
+        cop = _number(section, "refrigerator_cop", "precooling.refrigerator_cop")
+        if cop <= 0:
+            raise ScenarioError(f"precooling.refrigerator_cop must be above 0, got {section['refrigerator_cop']!r}")
+        values["refrigerator_cop"] = cop
+    else:
+        f = _number(section, "refrigerator_carnot_fraction", "precooling.refrigerator_carnot_fraction")
+        values["refrigerator_carnot_fraction"] = _between(
+            f, "precooling.refrigerator_carnot_fraction", 0, 1, given=section["refrigerator_carnot_fraction"])
+    return PrecoolingSpec(**values)
+
+
+def _parse_dual_pressure(section, p_low, p_hot_in):
+    if section is None:
+        return None
+    for key, what in (("intermediate_pressure", "a pressure between low_pressure and high_pressure"),
+                      ("recirculated_fraction", "a number between 0 and 1")):
+        _require(section, key, f"dual_pressure.{key}", what)
+    p_i = _quantity(section, "intermediate_pressure", "pressure", "dual_pressure.intermediate_pressure")
+    if not p_low < p_i < p_hot_in:
+        raise ScenarioError(f"dual_pressure.intermediate_pressure must be between low_pressure ({_bar(p_low)}) "
+                            f"and the high pressure after the aftercooler ({_bar(p_hot_in)}), "
+                            f"got {section['intermediate_pressure']!r}")
+    i = _number(section, "recirculated_fraction", "dual_pressure.recirculated_fraction")
+    _between(i, "dual_pressure.recirculated_fraction", 0, 1, high_open=True, given=section["recirculated_fraction"])
+    return DualPressureSpec(intermediate_pressure=p_i, recirculated_fraction=i)
 
 
 def _parse_compressor(section):
@@ -325,32 +494,32 @@ def _parse_aftercooler(section, T0, p_high, p_low):
     return AftercoolerSpec(outlet_temperature=T_out, pressure_drop=dp)
 
 
-def _parse_recuperator(section, p_hot_in, p_low):
+def _parse_recuperator(section, p_hot_in, p_low, key="recuperator"):
     if section is None:
-        raise ScenarioError("missing recuperator: expected one of recuperator.effectiveness, "
-                            "recuperator.min_approach or recuperator.ua")
-    mode = _exactly_one(section, ["effectiveness", "min_approach", "ua"], "recuperator")
+        raise ScenarioError(f"missing {key}: expected one of {key}.effectiveness, "
+                            f"{key}.min_approach or {key}.ua")
+    mode = _exactly_one(section, ["effectiveness", "min_approach", "ua"], key)
     values = {}
     if mode == "effectiveness":
-        eps = _number(section, "effectiveness", "recuperator.effectiveness")
-        values["effectiveness"] = _between(eps, "recuperator.effectiveness", 0, 1, given=section["effectiveness"])
+        eps = _number(section, "effectiveness", f"{key}.effectiveness")
+        values["effectiveness"] = _between(eps, f"{key}.effectiveness", 0, 1, given=section["effectiveness"])
     elif mode == "min_approach":
-        dT = _quantity(section, "min_approach", "temperature_difference", "recuperator.min_approach")
+        dT = _quantity(section, "min_approach", "temperature_difference", f"{key}.min_approach")
         if dT < 0 or dT > 200:
-            raise ScenarioError(f"recuperator.min_approach must be from 0 to 200 K, got {section['min_approach']!r}")
+            raise ScenarioError(f"{key}.min_approach must be from 0 to 200 K, got {section['min_approach']!r}")
         values["min_approach"] = dT
     else:
-        ua = _quantity(section, "ua", "thermal_conductance", "recuperator.ua")
+        ua = _quantity(section, "ua", "thermal_conductance", f"{key}.ua")
         if ua <= 0:
-            raise ScenarioError(f"recuperator.ua must be above 0 W/K, got {section['ua']!r}")
+            raise ScenarioError(f"{key}.ua must be above 0 W/K, got {section['ua']!r}")
         values["ua"] = ua
     if section.get("zones") is not None:
-        values["zones"] = _integer(section, "zones", "recuperator.zones", 1, 2000)
+        values["zones"] = _integer(section, "zones", f"{key}.zones", 1, 2000)
     for side, limit in (("high_side_pressure_drop", p_hot_in - p_low), ("low_side_pressure_drop", p_low)):
         if section.get(side) is not None:
-            dp = _quantity(section, side, "pressure", f"recuperator.{side}")
+            dp = _quantity(section, side, "pressure", f"{key}.{side}")
             if dp < 0 or dp >= limit:
-                raise ScenarioError(f"recuperator.{side} must be 0 or more and below {_bar(limit)}, "
+                raise ScenarioError(f"{key}.{side} must be 0 or more and below {_bar(limit)}, "
                                     f"got {section[side]!r}")
             values[side] = dp
     return RecuperatorSpec(**values)

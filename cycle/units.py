@@ -19,6 +19,7 @@ DIMENSIONS = {
     "volume_flow": ("[length] ** 3 / [time]", "meter ** 3 / second"),
     "temperature_difference": ("[temperature]", "kelvin"),
     "thermal_conductance": ("[power] / [temperature]", "watt / kelvin"),
+    "specific_energy": ("[length] ** 2 / [time] ** 2", "joule / kilogram"),
     "dimensionless": ("", ""),
 }
 
@@ -111,4 +112,5 @@ _EXAMPLE = {
     "volume_flow": "L/h",
     "temperature_difference": "K",
     "thermal_conductance": "W/K",
+    "specific_energy": "kJ/kg",
 }

@@ -1,0 +1,255 @@
+"""The precooled and dual-pressure Linde-Hampson flowsheets (see :mod:`cycle.flowsheet`)."""
+
+from cycle.equipment import MakeupMixer, Precooler, Recuperator, ThrottleValve
+from cycle.errors import NoLiquefactionError, ScenarioError
+from cycle.flowsheet import Liquefier, Section, solve_section
+from cycle.processes import carnot_cop, refrigeration_exergy
+
+
+class PrecooledLindeHampson(Liquefier):
+    """Warm recuperator -> precooler -> cold recuperator -> valve; the return gas passes back
+    through the cold, then the warm recuperator.
+
+    References
+    ----------
+    R. F. Barron, *Cryogenic Systems*, 2nd ed., Oxford University Press, 1985, sec. 3.6
+    (precooled Linde-Hampson system).
+    """
+
+    layout = "precooled"
+
+    def __init__(self, scenario, fluid=None):
+        super().__init__(scenario, fluid)
+        sc = scenario
+        self.warm = Recuperator(sc.warm_recuperator, "warm_recuperator")
+        self.cold = Recuperator(sc.cold_recuperator, "cold_recuperator")
+        self.precooler = Precooler(sc.precooling, sc.ambient_temperature)
+        self.suction_pressure = (sc.low_pressure - sc.cold_recuperator.low_side_pressure_drop
+                                 - sc.warm_recuperator.low_side_pressure_drop)
+        self.mixer = MakeupMixer(self.suction_pressure, sc.ambient_temperature, sc.low_pressure)
+
+    def _check_precooling(self, vapour):
+        spec, T0 = self.scenario.precooling, self.T0
+        if spec.temperature <= vapour.T:
+            raise ScenarioError(f"precooling.temperature must be above the boiling temperature of "
+                                f"{self.fluid.name} at low_pressure ({vapour.T:.2f} K), got {spec.temperature:g} K")
+        if spec.temperature >= T0:
+            raise ScenarioError(f"precooling.temperature must be below ambient_temperature ({T0:g} K), "
+                                f"got {spec.temperature:g} K")
+        if spec.coolant is not None:
+            from properties import PropertyRangeError
+
+            try:
+                liquid, _ = self.precooler.coolant_states()
+            except PropertyRangeError as err:
+                raise ScenarioError(f"precooling.coolant_pressure gives no boiling {spec.coolant}: {err}") from None
+            if liquid.T >= spec.temperature:
+                raise ScenarioError(
+                    f"precooling.temperature must be above the boiling temperature of the coolant "
+                    f"{spec.coolant} at precooling.coolant_pressure ({liquid.T:.2f} K), got {spec.temperature:g} K")
+        elif spec.refrigerator_cop is not None:
+            limit = carnot_cop(spec.temperature, T0)
+            if spec.refrigerator_cop >= limit:
+                raise ScenarioError(
+                    f"precooling.refrigerator_cop must be below the Carnot value {limit:.4g} between "
+                    f"precooling.temperature and ambient_temperature, got {spec.refrigerator_cop:g}")
+
+    def _solve(self, xtol, maxiter):
+        fl, sc = self.fluid, self.scenario
+        warm, cold = self.warm, self.cold
+        hp_in, liquid, vapour = self._fixed_states(self.suction_pressure)
+        self._check_precooling(vapour)
+        p_mid_hot = warm.hot_outlet_pressure(hp_in.p)
+        cold_in = self._keyed_state("precooling.temperature", sc.precooling.temperature, p_mid_hot)
+        p_mid_cold = cold.cold_outlet_pressure(vapour.p)
+        self._check_inversion(cold_in, p_mid_cold, precooled=True)
+        yield_at, flow_at = self._yield_function(liquid, vapour)
+
+        # Cold section first: the precooler fixes its hot inlet.
+        def yield_of(duty):
+            return yield_at(cold_in.h - duty)
+
+        cold_section = Section(fl, cold, cold_in, lambda d: [(vapour, 1.0 - yield_of(d))], vapour.T)
+        lowest = max(0.0, cold_in.h - vapour.h)
+        duty_c, prof_c, report_c = solve_section(cold_section, lambda d: flow_at(yield_of(d)), lowest,
+                                                 xtol, maxiter)
+        y = yield_of(duty_c)
+        eps_c = cold_section.effectiveness(duty_c)
+        m_fixed, _ = self._production(liquid)
+        q0 = sc.heat_leak / m_fixed if m_fixed else 0.0
+        eps_crit = cold.effectiveness(fl, cold_in, [(vapour, 1.0)], cold_in.h - vapour.h + q0)
+        if y <= 0:
+            raise NoLiquefactionError(self._critical_message(eps_c, eps_crit, "cold recuperator"))
+        m = flow_at(y)
+        mid_return = fl.state_ph(p_mid_cold, vapour.h + duty_c / (1.0 - y))
+
+        # Warm section: both flows are known now.
+        warm_section = Section(fl, warm, hp_in, lambda d: [(mid_return, 1.0 - y)], mid_return.T)
+        duty_w, prof_w, report_w = solve_section(warm_section, lambda d: m, 0.0, xtol, maxiter)
+        eps_w = warm_section.effectiveness(duty_w)
+        warm_out = fl.state_ph(p_mid_hot, hp_in.h - duty_w)
+        if warm_out.h < cold_in.h:
+            raise ScenarioError(
+                f"precooling.temperature {sc.precooling.temperature:g} K is above what the warm recuperator "
+                f"already reaches ({warm_out.T:.2f} K): the precooler would have to heat; lower "
+                f"precooling.temperature or give the warm recuperator less size")
+        _, precooler_duty = self.precooler.run(fl, warm_out)
+        supply = self.precooler.supply(precooler_duty)
+
+        cold_out = fl.state_ph(cold.hot_outlet_pressure(cold_in.p), cold_in.h - duty_c)
+        valve_out = self.valve.run(fl, cold_out)
+        ret = fl.state_ph(warm.cold_outlet_pressure(mid_return.p), mid_return.h + duty_w / (1.0 - y))
+        makeup = self.mixer.makeup_state(fl)
+        suction = self.mixer.run(fl, ret, 1.0 - y, y)
+        comp = self.compressor.run(fl, suction, sc.high_pressure)
+        hp_in, after_duty = self.aftercooler.run(fl, comp.outlet)
+
+        streams = [("compressor suction", suction, 1.0)]
+        streams += [(label, st, 1.0) for label, st in comp.states]
+        streams += [
+            ("aftercooler outlet, warm recuperator high-pressure inlet", hp_in, 1.0),
+            ("warm recuperator high-pressure outlet, precooler inlet", warm_out, 1.0),
+            ("precooler outlet, cold recuperator high-pressure inlet", cold_in, 1.0),
+            ("cold recuperator high-pressure outlet, valve inlet", cold_out, 1.0),
+            ("valve outlet, separator inlet", valve_out, 1.0),
+            ("liquid product", liquid, y),
+            ("separator vapour, cold recuperator low-pressure inlet", vapour, 1.0 - y),
+            ("cold recuperator low-pressure outlet, warm recuperator low-pressure inlet", mid_return, 1.0 - y),
+            ("warm recuperator low-pressure outlet", ret, 1.0 - y),
+            ("make-up gas", makeup, y),
+        ]
+        q_leak = sc.heat_leak / m if m else 0.0
+        T_sink = supply.sink_temperature
+        losses = {
+            "compressor": self._exergy_loss([(suction, 1.0)], [(hp_in, 1.0)],
+                                            [(-(comp.heat_rejected + after_duty), self.T0)]),
+            "warm_recuperator": self._exergy_loss([(hp_in, 1.0), (mid_return, 1.0 - y)],
+                                                  [(warm_out, 1.0), (ret, 1.0 - y)]),
+            "precooler": self._exergy_loss([(warm_out, 1.0)], [(cold_in, 1.0)], [(-precooler_duty, T_sink)]),
+            ("coolant" if supply.coolant is not None else "precooling_refrigerator"):
+                supply.work - refrigeration_exergy(precooler_duty, T_sink, self.T0),
+            "cold_recuperator": self._exergy_loss([(cold_in, 1.0), (vapour, 1.0 - y)],
+                                                  [(cold_out, 1.0), (mid_return, 1.0 - y)]),
+            "makeup_mixing": self._exergy_loss([(ret, 1.0 - y), (makeup, y)], [(suction, 1.0)]),
+        }
+        losses.update(self._cold_end_losses(y, q_leak, cold_out, valve_out, 1.0, liquid, vapour))
+        warn = []
+        if supply.lower_bound:
+            warn.append(f"the coolant {sc.precooling.coolant} is charged at its ideal work of liquefaction, "
+                        f"{supply.coolant_work / 1e3:.1f} kJ/kg: a lower bound on the precooling work; give "
+                        f"precooling.coolant_work for the real cost")
+        return self._finish(
+            y=y, m=m, streams=streams, compressions=[(comp, 1.0)], after_duty=after_duty, makeup=makeup,
+            liquid=liquid, throttle_outlet=valve_out,
+            recuperators={"warm_recuperator": self._recuperator_result(duty_w, prof_w, eps_w, None),
+                          "cold_recuperator": self._recuperator_result(duty_c, prof_c, eps_c, eps_crit)},
+            reports={"cold_recuperator": report_c, "warm_recuperator": report_w}, losses=losses,
+            precooling_work=supply.work, precooler_duty=precooler_duty, coolant=supply.coolant, warn=warn)
+
+
+class DualPressureLindeHampson(Liquefier):
+    """Two-section compression with a recirculated intermediate-pressure stream.
+
+    Per kg compressed to the high pressure, the fraction i returns at the intermediate
+    pressure through the recuperator to the high-pressure section; 1 - i is throttled on to the
+    low pressure, where y is drawn as liquid and 1 - i - y returns to the low-pressure section.
+
+    References
+    ----------
+    R. F. Barron, *Cryogenic Systems*, 2nd ed., Oxford University Press, 1985, sec. 3.7
+    (Linde dual-pressure system).
+    """
+
+    layout = "dual-pressure"
+
+    def __init__(self, scenario, fluid=None):
+        super().__init__(scenario, fluid)
+        sc = scenario
+        self.recuperator = rec = Recuperator(sc.recuperator)
+        self.i = sc.dual_pressure.recirculated_fraction
+        self.intermediate_pressure = sc.dual_pressure.intermediate_pressure
+        self.suction_pressure = rec.cold_outlet_pressure(sc.low_pressure)
+        self.mixing_pressure = rec.cold_outlet_pressure(self.intermediate_pressure)
+        self.first_valve = ThrottleValve(self.intermediate_pressure)
+        self.mixer = MakeupMixer(self.suction_pressure, sc.ambient_temperature, sc.low_pressure)
+
+    def _solve(self, xtol, maxiter):
+        fl, sc, rec, i = self.fluid, self.scenario, self.recuperator, self.i
+        hot_in, liquid, vapour = self._fixed_states(self.suction_pressure)
+        self._check_inversion(hot_in, self.suction_pressure)
+        yield_at, flow_at = self._yield_function(liquid, vapour, feed_flow=1.0 - i)
+        p_i = self.intermediate_pressure
+
+        def yield_of(duty):
+            return yield_at(hot_in.h - duty)
+
+        def colds_of(duty):
+            mid = fl.state_ph(p_i, hot_in.h - duty)
+            return [(vapour, max(0.0, 1.0 - i - yield_of(duty))), (mid, i)]
+
+        section = Section(fl, rec, hot_in, colds_of, vapour.T)
+        lowest = max(0.0, hot_in.h - vapour.h)
+        duty, prof, report = solve_section(section, lambda d: flow_at(yield_of(d)), lowest, xtol, maxiter)
+        y = yield_of(duty)
+        eps = section.effectiveness(duty)
+        m_fixed, _ = self._production(liquid)
+        q0 = sc.heat_leak / m_fixed if m_fixed else 0.0
+        duty0 = hot_in.h - (vapour.h - q0 / (1.0 - i))  # y = 0 here
+        eps_crit = rec.effectiveness(fl, hot_in, [(vapour, 1.0 - i), (fl.state_ph(p_i, hot_in.h - duty0), i)], duty0)
+        if y <= 0:
+            raise NoLiquefactionError(self._critical_message(eps, eps_crit, "recuperator"))
+        if i >= 1.0 - y:
+            raise ScenarioError(f"dual_pressure.recirculated_fraction must be below 1 - y = {1.0 - y:.4f} here "
+                                f"(no gas would be left to return at the low pressure), got {i:g}")
+        m = flow_at(y)
+
+        hp_out = fl.state_ph(rec.hot_outlet_pressure(hot_in.p), hot_in.h - duty)
+        mid = self.first_valve.run(fl, hp_out)
+        valve_out = self.valve.run(fl, mid)
+        T_out = float(prof.cold_T[-1])
+        lp_ret = fl.state_tp(T_out, self.suction_pressure)
+        ip_ret = fl.state_tp(T_out, self.mixing_pressure)
+        makeup = self.mixer.makeup_state(fl)
+        suction = self.mixer.run(fl, lp_ret, 1.0 - i - y, y)
+        low = self.compressor.run(fl, suction, self.mixing_pressure, section="low-pressure section ",
+                                  cool_after=True)
+        from cycle.processes import mix
+
+        hp_suction = mix(fl, self.mixing_pressure, [(1.0 - i, low.outlet.h), (i, ip_ret.h)])
+        high = self.compressor.run(fl, hp_suction, sc.high_pressure, section="high-pressure section ")
+        hp_in, after_duty = self.aftercooler.run(fl, high.outlet)
+
+        streams = [("compressor suction (low-pressure section)", suction, 1.0 - i)]
+        streams += [(label, st, 1.0 - i) for label, st in low.states]
+        streams += [("intermediate mixing outlet, high-pressure section suction", hp_suction, 1.0)]
+        streams += [(label, st, 1.0) for label, st in high.states]
+        streams += [
+            ("aftercooler outlet, recuperator high-pressure inlet", hp_in, 1.0),
+            ("recuperator high-pressure outlet, first valve inlet", hp_out, 1.0),
+            ("first valve outlet (intermediate pressure)", mid, 1.0),
+            ("second valve outlet, separator inlet", valve_out, 1.0 - i),
+            ("liquid product", liquid, y),
+            ("separator vapour, recuperator low-pressure inlet", vapour, 1.0 - i - y),
+            ("recuperator low-pressure outlet", lp_ret, 1.0 - i - y),
+            ("recuperator intermediate-pressure outlet", ip_ret, i),
+            ("make-up gas", makeup, y),
+        ]
+        q_leak = sc.heat_leak / m if m else 0.0
+        low_out = low.outlet
+        losses = {
+            "compressor": (self._exergy_loss([(suction, 1.0 - i)], [(low_out, 1.0 - i)],
+                                             [(-(1.0 - i) * low.heat_rejected, self.T0)])
+                           + self._exergy_loss([(hp_suction, 1.0)], [(hp_in, 1.0)],
+                                               [(-(high.heat_rejected + after_duty), self.T0)])),
+            "intermediate_mixing": self._exergy_loss([(low_out, 1.0 - i), (ip_ret, i)], [(hp_suction, 1.0)]),
+            "recuperator": self._exergy_loss([(hot_in, 1.0), (vapour, 1.0 - i - y), (mid, i)],
+                                             [(hp_out, 1.0), (lp_ret, 1.0 - i - y), (ip_ret, i)]),
+            "intermediate_valve": self._exergy_loss([(hp_out, 1.0)], [(mid, 1.0)]),
+            "makeup_mixing": self._exergy_loss([(lp_ret, 1.0 - i - y), (makeup, y)], [(suction, 1.0 - i)]),
+        }
+        losses.update(self._cold_end_losses(y, q_leak, mid, valve_out, 1.0 - i, liquid, vapour))
+        return self._finish(
+            y=y, m=m, streams=streams, compressions=[(low, 1.0 - i), (high, 1.0)], after_duty=after_duty,
+            makeup=makeup, liquid=liquid, throttle_outlet=valve_out,
+            recuperators={"recuperator": self._recuperator_result(duty, prof, eps, eps_crit)},
+            reports={"recuperator": report}, losses=losses)
