@@ -9,5 +9,9 @@ class NoLiquefactionError(RuntimeError):
     """The cycle as specified makes no liquid; the message says why."""
 
 
+class UnreachableSizingError(NoLiquefactionError):
+    """A recuperator sizing that no exchanger between these streams can meet."""
+
+
 class RecycleNotConvergedWarning(RuntimeWarning):
     """The recycle solve stopped before meeting its tolerance."""

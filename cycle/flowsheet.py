@@ -27,7 +27,7 @@ import warnings
 from scipy.optimize import brentq, minimize_scalar
 
 from cycle.equipment import Aftercooler, Compressor, MakeupMixer, Recuperator, Separator, ThrottleValve
-from cycle.errors import NoLiquefactionError, RecycleNotConvergedWarning, ScenarioError
+from cycle.errors import NoLiquefactionError, RecycleNotConvergedWarning, ScenarioError, UnreachableSizingError
 from cycle.results import CycleResult, RecuperatorResult, SolveReport, StreamState
 
 # Relative tolerance of the tear variable; property flashes are good to ~1e-10 in h.
@@ -187,7 +187,7 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
 
         f_hi = residual(Q_hi)
         if f_hi < 0:
-            raise NoLiquefactionError(
+            raise UnreachableSizingError(
                 f"{key}.effectiveness {target:g} cannot be reached: the high-pressure stream would have to "
                 f"leave colder than the returning gas ({section.T_floor:.2f} K); the most this exchanger "
                 f"can reach here is {section.effectiveness(Q_hi):.4f}")

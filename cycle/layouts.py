@@ -1,7 +1,7 @@
 """The precooled and dual-pressure Linde-Hampson flowsheets (see :mod:`cycle.flowsheet`)."""
 
 from cycle.equipment import MakeupMixer, Precooler, Recuperator, ThrottleValve
-from cycle.errors import NoLiquefactionError, ScenarioError
+from cycle.errors import NoLiquefactionError, ScenarioError, UnreachableSizingError
 from cycle.flowsheet import Liquefier, Section, solve_section
 from cycle.processes import carnot_cop, refrigeration_exergy
 
@@ -189,7 +189,12 @@ class DualPressureLindeHampson(Liquefier):
 
         section = Section(fl, rec, hot_in, colds_of, vapour.T)
         lowest = max(0.0, hot_in.h - vapour.h)
-        duty, prof, report = solve_section(section, lambda d: flow_at(yield_of(d)), lowest, xtol, maxiter)
+        try:
+            duty, prof, report = solve_section(section, lambda d: flow_at(yield_of(d)), lowest, xtol, maxiter)
+        except UnreachableSizingError as err:
+            raise ScenarioError(
+                f"dual_pressure.recirculated_fraction {i:g} returns more gas at the intermediate pressure "
+                f"than the recuperator can warm ({err}); lower it: it must stay well below 1 - y") from None
         y = yield_of(duty)
         eps = section.effectiveness(duty)
         m_fixed, _ = self._production(liquid)
