@@ -47,6 +47,53 @@ def _parser():
     run.add_argument("--json", action="store_true",
                      help="print one JSON object (scenario, summary, states, warnings) and nothing else")
 
+    sweep = sub.add_parser(
+        "sweep", help="run every point of a scenario's sweep section into a CSV or Parquet file",
+        description="Run every point of the scenario's sweep: section (a grid, or zip-paired lists) and "
+                    "write one row per point: the swept values (SI), status, message and every summary key. "
+                    "Rows reach the file as points finish; run the same command again after an "
+                    "interruption to compute only the missing points.",
+        epilog=CAUTIONS + "\n\nexit status: 0 the sweep ran (failed points say so in their status); "
+                          "2 invalid scenario or sweep; 130 interrupted (results so far are kept).",
+        formatter_class=_Formatter)
+    sweep.add_argument("scenario", metavar="SCENARIO.yaml", help="scenario file with a sweep: section")
+    sweep.add_argument("--out", required=True, metavar="PATH", help="results file, .csv or .parquet")
+    sweep.add_argument("--workers", type=int, default=None, metavar="N",
+                       help="local worker processes (default: the CPU count; 1 runs in this process)")
+    sweep.add_argument("--dask", metavar="ADDRESS",
+                       help="run on a Dask distributed scheduler at ADDRESS, or 'local' to start one here")
+    sweep.add_argument("--overwrite", action="store_true",
+                       help="replace an output file made by a different scenario")
+
+    compare = sub.add_parser(
+        "compare", help="the same plant with several gases, ranked by figure of merit",
+        description="Solve the scenario once per gas and rank the gases by figure of merit, with yield, "
+                    "work per kg of liquid and, with a production target, compressor flow and power.",
+        epilog=CAUTIONS, formatter_class=_Formatter)
+    compare.add_argument("scenario", metavar="SCENARIO.yaml")
+    compare.add_argument("--gases", required=True, metavar="LIST", help="comma-separated, e.g. nitrogen,argon,methane")
+    compare.add_argument("--at-optimum", action="store_true",
+                         help="put each gas at its own best high_pressure (for the figure of merit) first")
+    compare.add_argument("--between", nargs=2, metavar=("LOW", "HIGH"),
+                         help="high_pressure bounds for --at-optimum (default '10 bar' '300 bar')")
+    compare.add_argument("--json", action="store_true", help="print a JSON list of rows and nothing else")
+
+    optimize = sub.add_parser(
+        "optimize", help="the value of one or more keys that gives the most liquid or the least work",
+        description="Search the scenario key(s) given by --vary within --between bounds for the goal; "
+                    "one key by a bounded Brent search, several by Powell's method with bounds.",
+        epilog=CAUTIONS + "\n\ngoals: max-yield, min-work-per-liquid, max-figure-of-merit.",
+        formatter_class=_Formatter)
+    optimize.add_argument("scenario", metavar="SCENARIO.yaml")
+    optimize.add_argument("--vary", action="append", required=True, metavar="KEY",
+                          help="scenario key, dotted for nested keys (repeat with --between for several)")
+    optimize.add_argument("--between", nargs=2, action="append", required=True, metavar=("LOW", "HIGH"),
+                          help="bounds of the key before it, e.g. '50 bar' '400 bar'")
+    optimize.add_argument("--goal", required=True, choices=["max-yield", "min-work-per-liquid",
+                                                            "max-figure-of-merit"])
+    optimize.add_argument("--json", action="store_true",
+                          help='print {"vary": {KEY: optimum in SI}, "goal": ..., "summary": {...}} and nothing else')
+
     gas = sub.add_parser(
         "gas", help="properties of a gas at one state: Joule-Thomson coefficient, inversion, saturation",
         description="Print the state of a gas at a temperature and pressure, its Joule-Thomson "
@@ -69,12 +116,15 @@ def _fail(message, code=EXIT_INPUT):
 def main(argv=None):
     """Entry point of the ``lhsim`` console script; returns the exit status."""
     args = _parser().parse_args(argv)
+    commands = {"run": _cmd_run, "gas": _cmd_gas, "sweep": _cmd_sweep, "compare": _cmd_compare,
+                "optimize": _cmd_optimize}
     try:
-        if args.command == "run":
-            return _cmd_run(args)
-        return _cmd_gas(args)
+        return commands[args.command](args)
     except BrokenPipeError:
         return 0
+    except KeyboardInterrupt:
+        print("lhsim: interrupted", file=sys.stderr)
+        return 130
 
 
 def _json_safe(value):
@@ -93,6 +143,9 @@ def _cmd_run(args):
 
     try:
         scenario = load_scenario(args.scenario)
+        if "sweep" in scenario.source or "sweep" in _read(args.scenario):
+            print("lhsim: note: run solves the scenario without its sweep section; use lhsim sweep "
+                  "for the points", file=sys.stderr)
         from cycle.flowsheet import solve_scenario
 
         result = solve_scenario(scenario)
@@ -106,6 +159,82 @@ def _cmd_run(args):
         from cycle.report import format_result
 
         print(format_result(result))
+        print(SHORT_CAUTION)
+    return 0
+
+
+def _read(path):
+    from cycle.scenario import read_mapping
+
+    return read_mapping(path)
+
+
+def _cmd_sweep(args):
+    from cycle.errors import ScenarioError
+
+    if args.workers is not None and args.workers < 1:
+        return _fail(f"--workers must be 1 or more, got {args.workers}")
+    try:
+        data = _read(args.scenario)
+        from cycle.sweep import run_sweep
+
+        try:
+            outcome = run_sweep(data, args.out, workers=args.workers, dask=args.dask, overwrite=args.overwrite)
+        except KeyboardInterrupt:
+            print(f"lhsim: interrupted; the points finished so far are in {args.out}: run the same command "
+                  f"again to compute the rest", file=sys.stderr)
+            return 130
+    except ScenarioError as err:
+        return _fail(str(err))
+    print(f"{outcome['points']} points in {outcome['path']} ({outcome['computed']} computed now, "
+          f"{outcome['failed']} not ok)", file=sys.stderr)
+    return 0
+
+
+def _cmd_compare(args):
+    from cycle.errors import ScenarioError
+
+    gases = [g.strip() for g in args.gases.split(",") if g.strip()]
+    if not gases:
+        return _fail("--gases: expected a comma-separated list such as nitrogen,argon")
+    try:
+        from cycle.studies import compare
+
+        rows = compare(_read(args.scenario), gases, at_optimum=args.at_optimum,
+                       between=tuple(args.between) if args.between else None)
+    except ScenarioError as err:
+        return _fail(str(err))
+    if args.json:
+        print(json.dumps(_json_safe(rows), indent=2))
+    else:
+        from cycle.report import format_comparison
+
+        print(format_comparison(rows))
+        print(SHORT_CAUTION)
+    return 0
+
+
+def _cmd_optimize(args):
+    from cycle.errors import NoLiquefactionError, ScenarioError
+
+    if len(args.vary) != len(args.between):
+        return _fail(f"give one --between LOW HIGH for each --vary, got {len(args.vary)} --vary and "
+                     f"{len(args.between)} --between")
+    try:
+        from cycle.studies import optimize
+
+        found = optimize(_read(args.scenario), [(k, lo, hi) for k, (lo, hi) in zip(args.vary, args.between)],
+                         args.goal)
+    except ScenarioError as err:
+        return _fail(str(err))
+    except NoLiquefactionError as err:
+        return _fail(str(err), EXIT_NO_LIQUID)
+    if args.json:
+        print(json.dumps(_json_safe(found), indent=2))
+    else:
+        from cycle.report import format_optimum
+
+        print(format_optimum(found))
         print(SHORT_CAUTION)
     return 0
 

@@ -157,3 +157,50 @@ def format_gas(info):
         _line("triple point", f"{info['triple_point_temperature_K']:.3f} K, {info['triple_point_pressure_bar']:.4g} bar"),
     ]
     return "\n".join(lines)
+
+
+def format_comparison(rows):
+    """``lhsim compare`` rows as a ranked table."""
+    import pandas as pd
+
+    def num(row, key, fmt):
+        value = row.get(key)
+        return "" if value is None else fmt.format(value)
+
+    table = pd.DataFrame({
+        "rank": [r["rank"] for r in rows],
+        "gas": [r["gas"] for r in rows],
+        "status": [r["status"] for r in rows],
+        "figure of merit": [num(r, "figure_of_merit", "{:.4f}") for r in rows],
+        "yield": [num(r, "liquid_yield", "{:.4f}") for r in rows],
+        "work [kJ/kg liquid]": [num(r, "work_kJ_per_kg_liquid", "{:.0f}") for r in rows],
+    })
+    if any("high_pressure" in r for r in rows):
+        table["high pressure [bar]"] = [num(r, "high_pressure", "{:.1f}") if r.get("high_pressure") is None
+                                        else f"{r['high_pressure'] / 1e5:.1f}" for r in rows]
+    if any(r.get("compressor_flow_kg_per_h") is not None for r in rows):
+        table["compressor flow [kg/h]"] = [num(r, "compressor_flow_kg_per_h", "{:.2f}") for r in rows]
+        table["compressor power [kW]"] = [num(r, "compressor_power_kW", "{:.3f}") for r in rows]
+    lines = [table.to_string(index=False)]
+    notes = [f"  {r['gas']}: {r['message']}" for r in rows if r["status"] != "ok"]
+    if notes:
+        lines += ["", "Why some gases make no liquid here:"] + notes
+    return "\n".join(lines)
+
+
+def format_optimum(found):
+    """``lhsim optimize`` result as readable text."""
+    s = found["summary"]
+    lines = [f"optimum for {found['goal']} ({found['evaluations']} evaluations, "
+             f"{'converged' if found['converged'] else 'NOT converged'})"]
+    for key, value in found["vary"].items():
+        lines.append(_line(key + " (SI)", value, "", "{:.6g}"))
+    lines += [
+        _line("liquid yield", s["liquid_yield"], "", "{:.5f}"),
+        _line("work per kg liquid", s["work_kJ_per_kg_liquid"], "kJ/kg", "{:.0f}"),
+        _line("figure of merit", s["figure_of_merit"], "", "{:.4f}"),
+    ]
+    if "compressor_power_kW" in s:
+        lines += [_line("compressor flow", s["compressor_flow_kg_per_h"], "kg/h", "{:.2f}"),
+                  _line("compressor power", s["compressor_power_kW"], "kW", "{:.3f}")]
+    return "\n".join(lines)

@@ -307,5 +307,36 @@ class CycleResult:
         }
 
 
+def summary_keys(scenario):
+    """The keys :meth:`CycleResult.summary` gives for a scenario, in order, without solving it
+    (a sweep writes its file header before the first point is solved)."""
+    keys = ["liquid_yield", "work_kJ_per_kg_compressed", "work_kJ_per_kg_liquid",
+            "compressor_work_kJ_per_kg_liquid", "precooling_work_kJ_per_kg_liquid",
+            "ideal_work_kJ_per_kg_liquid", "figure_of_merit", "precooler_duty_kJ_per_kg_compressed"]
+    coolant = scenario.precooling is not None and scenario.precooling.coolant is not None
+    if coolant:
+        keys.append("coolant_kg_per_kg_liquid")
+    names = ["warm_recuperator", "cold_recuperator"] if scenario.layout == "precooled" else ["recuperator"]
+    for name in names:
+        keys += [f"{name}_{k}" for k in ("effectiveness", "critical_effectiveness", "min_approach_K",
+                                         "min_approach_position", "warm_end_approach_K", "cold_end_approach_K",
+                                         "duty_kJ_per_kg_compressed", "UA_W_per_K_per_kg_per_s")]
+    if "recuperator" not in names:
+        keys += ["recuperator_min_approach_K", "recuperator_duty_kJ_per_kg_compressed",
+                 "recuperator_UA_W_per_K_per_kg_per_s"]
+    keys += ["throttle_outlet_temperature_K", "throttle_outlet_quality", "heat_rejected_kJ_per_kg_compressed",
+             "energy_balance_residual"]
+    if scenario.production is not None:
+        keys += ["compressor_flow_kg_per_h", "liquid_rate_kg_per_h", "liquid_rate_L_per_h", "compressor_power_kW",
+                 "precooling_power_kW", "aftercooler_duty_kW", "heat_rejected_kW", "precooler_duty_kW",
+                 "recuperator_duty_kW", "recuperator_UA_W_per_K", "heat_leak_W"]
+        if len(names) > 1:
+            for name in names:
+                keys += [f"{name}_UA_W_per_K", f"{name}_duty_kW"]
+        if coolant:
+            keys.append("coolant_kg_per_h")
+    return keys
+
+
 def _finite_or_none(x):
     return float(x) if np.isfinite(x) else None

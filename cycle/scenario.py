@@ -550,17 +550,13 @@ def _parse_production(section):
     return spec
 
 
-def load_scenario(path):
-    """Read and validate a YAML scenario file.
+def read_mapping(path):
+    """Read a YAML scenario file into a plain mapping, without validating it.
 
-    Parameters
-    ----------
-    path : str or os.PathLike
-        Path of the scenario file.
-
-    Returns
-    -------
-    Scenario
+    Raises
+    ------
+    ScenarioError
+        If the file is missing, unreadable, not YAML or empty.
     """
     import yaml
 
@@ -578,4 +574,22 @@ def load_scenario(path):
                             f"{getattr(err, 'problem', None) or err}") from None
     if data is None:
         raise ScenarioError(f"scenario file {path} is empty: expected a mapping with gas, low_pressure, ...")
+    return data
+
+
+def load_scenario(path):
+    """Read and validate a YAML scenario file (a ``sweep:`` section in it is set aside).
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        Path of the scenario file.
+
+    Returns
+    -------
+    Scenario
+    """
+    data = read_mapping(path)
+    if isinstance(data, dict):
+        data = {k: v for k, v in data.items() if k != "sweep"}
     return parse_scenario(data)

@@ -48,3 +48,11 @@ def test_layout_drawings_are_what_the_script_draws(tmp_path):
                    capture_output=True, timeout=60)
     for made in (tmp_path / "docs" / "img").glob("*.svg"):
         assert made.read_text() == (ROOT / "docs" / "img" / made.name).read_text(), made.name
+
+
+@pytest.mark.parametrize("path", DEMOS, ids=[p.stem for p in DEMOS])
+def test_summary_keys_are_known_before_solving(path):
+    from cycle.results import summary_keys
+
+    sc = load_scenario(path)
+    assert list(solve_scenario(sc).summary()) == summary_keys(sc)

@@ -1,0 +1,100 @@
+"""A small Python interface for notebooks: scenarios in, results and pandas DataFrames out.
+
+Example
+-------
+>>> from cycle import api
+>>> scenario = api.load("scenarios/nitrogen-bench.yaml")
+>>> result = api.run(scenario)
+>>> result.summary()["liquid_yield"]                                   # doctest: +SKIP
+>>> frame = api.sweep("scenarios/nitrogen-bench.yaml", {"high_pressure": {"from": "100 bar",
+...                   "to": "300 bar", "steps": 9}}, out="nitrogen-sweep.csv")   # doctest: +SKIP
+"""
+
+import copy
+import os
+import pathlib
+import tempfile
+
+from cycle.scenario import parse_scenario, read_mapping
+
+
+def _mapping(source):
+    if isinstance(source, (str, os.PathLike)):
+        return read_mapping(source)
+    if isinstance(source, dict):
+        return copy.deepcopy(source)
+    raise TypeError(f"expected a scenario file path or mapping, got {type(source).__name__}")
+
+
+def load(source):
+    """A validated :class:`~cycle.scenario.Scenario` from a YAML file or a mapping (sweep set aside)."""
+    data = _mapping(source)
+    data.pop("sweep", None)
+    return parse_scenario(data)
+
+
+def run(scenario):
+    """Solve a scenario (a :class:`~cycle.scenario.Scenario`, a path or a mapping) into a
+    :class:`~cycle.results.CycleResult`; ``result.to_frame()`` is the state table."""
+    from cycle.flowsheet import solve_scenario
+    from cycle.scenario import Scenario
+
+    if not isinstance(scenario, Scenario):
+        scenario = load(scenario)
+    return solve_scenario(scenario)
+
+
+def sweep(source, axes=None, out=None, workers=1, dask=None, mode=None, overwrite=True):
+    """Run a sweep and return its results as a DataFrame (one row per point).
+
+    Parameters
+    ----------
+    source : str, os.PathLike or dict
+        Scenario file or mapping; its own ``sweep:`` section is used unless ``axes`` is given.
+    axes : dict, optional
+        Sweep section to use instead: key -> list of values or ``{from, to, steps[, spacing]}``.
+    out : str or os.PathLike, optional
+        Results file (.csv or .parquet) to keep; default a temporary file.
+    workers : int
+        Local worker processes (1: this process).
+    dask : str, optional
+        ``"local"`` or a scheduler address.
+    mode : str, optional
+        ``"grid"`` or ``"zip"``.
+    overwrite : bool
+        Replace an ``out`` file made by another scenario (default True in notebooks).
+    """
+    from cycle.sweep import run_sweep
+
+    data = _mapping(source)
+    if axes is not None:
+        data["sweep"] = dict(axes)
+    if mode is not None:
+        data.setdefault("sweep", {})["mode"] = mode
+    with tempfile.TemporaryDirectory() as tmp:
+        path = pathlib.Path(out) if out is not None else pathlib.Path(tmp) / "sweep.csv"
+        run_sweep(data, path, workers=workers, dask=dask, overwrite=overwrite, progress=False)
+        import pandas as pd
+
+        if path.suffix.lower() == ".parquet":
+            return pd.read_parquet(path)
+        return pd.read_csv(path, keep_default_na=False, na_values=[""], dtype={"message": str, "status": str})
+
+
+def compare(source, gases, at_optimum=False, between=None):
+    """The same plant with each gas, ranked by figure of merit, as a DataFrame."""
+    import pandas as pd
+
+    from cycle.studies import compare as _compare
+
+    return pd.DataFrame(_compare(_mapping(source), list(gases), at_optimum=at_optimum, between=between))
+
+
+def optimize(source, vary, goal):
+    """Best values of keys for a goal: ``vary`` maps each key to (low, high) bounds.
+
+    Returns the dictionary ``lhsim optimize --json`` prints.
+    """
+    from cycle.studies import optimize as _optimize
+
+    return _optimize(_mapping(source), [(key, lo, hi) for key, (lo, hi) in vary.items()], goal)

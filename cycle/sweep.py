@@ -1,0 +1,512 @@
+"""Parameter sweeps from scenario files: points, validation, running, and a resumable file.
+
+A ``sweep:`` section maps scenario keys (dotted for nested keys, ``gas`` included) to a list
+of values or a range ``{from: ..., to: ..., steps: N, spacing: log}``; several keys form the
+full grid, or (``mode: zip``) are paired.  Every point is validated before any is run.
+
+Results reach the output file in small batches as points finish.  Running the same command
+again computes only the points missing from the file; a partly written last line is dropped
+and redone; when all points are in, the file is rewritten sorted by point, so that it equals
+an uninterrupted run.  A sidecar ``<output>.lhsim.json`` holds the fingerprint of the scenario
+that made the file; a different scenario is refused unless ``overwrite`` is given.
+"""
+
+import copy
+import csv
+import hashlib
+import io
+import itertools
+import json
+import math
+import os
+import pathlib
+
+from cycle.errors import NoLiquefactionError, ScenarioError
+from cycle.scenario import SCHEMA, parse_scenario
+from cycle.units import UnitError, parse_quantity
+
+STATUSES = ("ok", "no-liquid", "invalid", "failed")
+_RANGE_KEYS = {"from", "to", "steps", "spacing"}
+
+
+# -- the sweep section --------------------------------------------------------------------
+
+def split_sweep(data):
+    """Return (the scenario mapping without its sweep section, the sweep section or None)."""
+    if not isinstance(data, dict):
+        return data, None
+    data = dict(data)
+    return data, data.pop("sweep", None)
+
+
+def _kind_of(key):
+    """Schema kind of a dotted scenario key, or raise ScenarioError naming it."""
+    node = SCHEMA
+    parts = key.split(".")
+    for k, part in enumerate(parts):
+        if not isinstance(node, dict) or part not in node:
+            import difflib
+
+            from cycle.scenario import _all_keys
+
+            close = difflib.get_close_matches(key, list(_all_keys(SCHEMA)), n=1, cutoff=0.5)
+            hint = f"; did you mean {close[0]}?" if close else ""
+            raise ScenarioError(f"sweep.{key}: not a scenario key{hint}")
+        node = node[part]
+    if isinstance(node, dict):
+        raise ScenarioError(f"sweep.{key}: a section cannot be swept; sweep one of its keys, e.g. "
+                            f"{key}.{next(iter(node))}")
+    return node
+
+
+def to_si(key, value):
+    """A swept value as a column entry: SI number for quantities, text for names."""
+    kind = _kind_of(key)
+    if kind in ("gas", "text"):
+        return str(value)
+    if kind == "integer":
+        return int(value)
+    if kind == "number":
+        return parse_quantity(value, "dimensionless")
+    kinds = kind if isinstance(kind, tuple) else (kind,)
+    for dimension in kinds:
+        try:
+            return parse_quantity(value, dimension)
+        except UnitError:
+            continue
+    raise UnitError(f"expected a {' or '.join(k.replace('_', ' ') for k in kinds)}, got {value!r}")
+
+
+def _range_values(key, spec):
+    unknown = set(spec) - _RANGE_KEYS
+    if unknown:
+        raise ScenarioError(f"sweep.{key}: unknown range key {sorted(unknown)[0]}; a range takes from, to, "
+                            f"steps and optionally spacing (linear or log)")
+    for part in ("from", "to", "steps"):
+        if part not in spec:
+            raise ScenarioError(f"sweep.{key}: a range needs from, to and steps, missing {part}")
+    steps = spec["steps"]
+    if isinstance(steps, bool) or not isinstance(steps, int) or not 1 <= steps <= 100000:
+        raise ScenarioError(f"sweep.{key}.steps must be a whole number from 1 to 100000, got {steps!r}")
+    kind = _kind_of(key)
+    if kind in ("gas", "text"):
+        raise ScenarioError(f"sweep.{key}: a range needs a numeric key; give a list of values instead")
+    try:
+        lo, hi = to_si(key, spec["from"]), to_si(key, spec["to"])
+    except UnitError as err:
+        raise ScenarioError(f"sweep.{key}: {err}") from None
+    spacing = spec.get("spacing", "linear")
+    if spacing not in ("linear", "log"):
+        raise ScenarioError(f"sweep.{key}.spacing must be linear or log, got {spacing!r}")
+    import numpy as np
+
+    if spacing == "log":
+        if lo <= 0 or hi <= 0:
+            raise ScenarioError(f"sweep.{key}: log spacing needs from and to above 0, got {spec['from']!r} "
+                                f"and {spec['to']!r}")
+        values = np.geomspace(lo, hi, steps)
+    else:
+        values = np.linspace(lo, hi, steps)
+    if kind == "integer":
+        return [int(round(v)) for v in values]
+    return [float(v) for v in values]
+
+
+def sweep_axes(section):
+    """Parse a sweep section into (mode, {key: [values]})."""
+    if not isinstance(section, dict) or not section:
+        raise ScenarioError(f"sweep must map scenario keys to lists of values or ranges, got {section!r}")
+    section = dict(section)
+    mode = section.pop("mode", "grid")
+    if mode not in ("grid", "zip"):
+        raise ScenarioError(f"sweep.mode must be grid or zip, got {mode!r}")
+    if not section:
+        raise ScenarioError("sweep names no key to sweep")
+    axes = {}
+    for key, spec in section.items():
+        key = str(key)
+        _kind_of(key)
+        if isinstance(spec, dict):
+            axes[key] = _range_values(key, spec)
+        elif isinstance(spec, list) and spec:
+            axes[key] = list(spec)
+        else:
+            raise ScenarioError(f"sweep.{key} must be a list of values or a range "
+                                f"{{from: ..., to: ..., steps: N}}, got {spec!r}")
+    if mode == "zip":
+        lengths = {key: len(v) for key, v in axes.items()}
+        if len(set(lengths.values())) > 1:
+            listed = ", ".join(f"{k} has {n}" for k, n in lengths.items())
+            raise ScenarioError(f"sweep.mode zip needs lists of one length: {listed}")
+    return mode, axes
+
+
+def set_key(data, key, value):
+    """A deep copy of a scenario mapping with the dotted ``key`` set to ``value``."""
+    out = copy.deepcopy(data)
+    node = out
+    parts = key.split(".")
+    for part in parts[:-1]:
+        child = node.get(part)
+        if not isinstance(child, dict):
+            child = {}
+            node[part] = child
+        node = child
+    node[parts[-1]] = value
+    return out
+
+
+def expand(data):
+    """All points of a scenario mapping with a sweep section.
+
+    Returns
+    -------
+    keys : list of str
+        The swept keys, in file order.
+    points : list of (dict, dict)
+        For each point, the swept values as given and the full scenario mapping.
+    """
+    base, section = split_sweep(data)
+    if section is None:
+        raise ScenarioError("the scenario has no sweep section: add sweep: {high_pressure: [100 bar, 200 bar]}, "
+                            "for example")
+    mode, axes = sweep_axes(section)
+    keys = list(axes)
+    combos = zip(*axes.values()) if mode == "zip" else itertools.product(*axes.values())
+    points = []
+    for combo in combos:
+        values = dict(zip(keys, combo))
+        mapping = base
+        for key, value in values.items():
+            mapping = set_key(mapping, key, value)
+        points.append((values, mapping))
+    return keys, points
+
+
+def validate(keys, points):
+    """Parse every point; refuse the sweep on the first invalid one, naming key and value."""
+    scenarios = []
+    for k, (values, mapping) in enumerate(points):
+        try:
+            scenarios.append(parse_scenario(mapping))
+        except ScenarioError as err:
+            at = ", ".join(f"{key} = {value!r}" for key, value in values.items())
+            raise ScenarioError(f"sweep point {k} ({at}) is invalid: {err}") from None
+        for key, value in values.items():
+            try:
+                to_si(key, value)
+            except UnitError as err:
+                raise ScenarioError(f"sweep point {k}: {key} = {value!r}: {err}") from None
+    return scenarios
+
+
+def fingerprint(data):
+    """A hash of the scenario mapping (sweep included) and the lhsim version."""
+    from cycle import __version__
+
+    text = json.dumps(data, sort_keys=True, default=str)
+    return hashlib.sha256(f"{__version__}\n{text}".encode()).hexdigest()[:20]
+
+
+# -- running points -----------------------------------------------------------------------
+
+def run_point(mapping):
+    """Solve one scenario mapping; return (status, message, summary dict)."""
+    from properties import PropertyRangeError
+    from cycle.flowsheet import solve_scenario
+
+    try:
+        result = solve_scenario(parse_scenario(mapping))
+    except NoLiquefactionError as err:
+        return "no-liquid", str(err), {}
+    except (ScenarioError, PropertyRangeError) as err:
+        return "invalid", str(err), {}
+    except Exception as err:  # a bug or a solver failure: recorded, never stops the sweep
+        return "failed", f"{type(err).__name__}: {err}", {}
+    return "ok", "", result.summary()
+
+
+def run_batch(batch):
+    """Worker entry: ``batch`` is a list of (point index, scenario mapping); plain data only."""
+    return [(index, run_point(mapping)) for index, mapping in batch]
+
+
+def _cell(value):
+    if value is None:
+        return ""
+    if isinstance(value, float):
+        return "" if not math.isfinite(value) else repr(value)
+    return str(value)
+
+
+def columns_for(keys, scenarios):
+    """Header of a sweep file: point, the swept keys, status, message, then every summary key."""
+    from cycle.results import summary_keys
+
+    summary = []
+    for sc in scenarios:
+        for key in summary_keys(sc):
+            if key not in summary:
+                summary.append(key)
+    return ["point"] + keys + ["status", "message"] + [k for k in summary if k not in keys]
+
+
+def make_row(columns, index, values, outcome):
+    status, message, summary = outcome
+    row = {"point": index, "status": status, "message": message}
+    row.update({key: to_si(key, value) for key, value in values.items()})
+    for key in columns:
+        if key not in row:
+            row[key] = summary.get(key)
+    return [_cell(row[c]) for c in columns]
+
+
+# -- the resumable results file -----------------------------------------------------------
+
+class ResultsFile:
+    """A CSV (or Parquet, through a CSV journal) that rows reach as they finish.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+    columns : list of str
+    fingerprint : str
+        Of the scenario that makes the file.
+    points : int
+        How many points the sweep has.
+    overwrite : bool
+        Replace a file made by a different scenario.
+    """
+
+    def __init__(self, path, columns, fingerprint, points, overwrite=False):
+        self.path = pathlib.Path(path)
+        self.parquet = self.path.suffix.lower() == ".parquet"
+        if self.path.suffix.lower() not in (".csv", ".parquet"):
+            raise ScenarioError(f"--out must end in .csv or .parquet, got {self.path.name}")
+        self.journal = self.path.with_name(self.path.name + ".journal.csv") if self.parquet else self.path
+        self.meta = self.path.with_name(self.path.name + ".lhsim.json")
+        self.columns = columns
+        self.fingerprint = fingerprint
+        self.points = points
+        self.rows = {}
+        self._open(overwrite)
+
+    def _open(self, overwrite):
+        exists = self.path.exists() or self.journal.exists()
+        if exists and not overwrite:
+            try:
+                meta = json.loads(self.meta.read_text())
+            except (OSError, ValueError):
+                meta = None
+            if meta is None:
+                raise ScenarioError(f"{self.path} exists and was not written by this sweep; give --overwrite "
+                                    f"to replace it, or choose another --out")
+            if meta.get("fingerprint") != self.fingerprint or meta.get("columns") != self.columns:
+                raise ScenarioError(f"{self.path} holds results of a different scenario or sweep; give "
+                                    f"--overwrite to replace it, or choose another --out")
+            if self.journal.exists():
+                self._read_journal()
+            elif self.parquet:
+                self._read_parquet()
+        else:
+            for stale in (self.path, self.journal):
+                if stale.exists():
+                    stale.unlink()
+        self.path.parent.mkdir(parents=True, exist_ok=True)
+        self.meta.write_text(json.dumps({"fingerprint": self.fingerprint, "columns": self.columns,
+                                         "points": self.points}, indent=1))
+        if not self.journal.exists():
+            self._rewrite_journal()
+
+    def _read_journal(self):
+        raw = self.journal.read_bytes()
+        if raw and not raw.endswith(b"\n"):  # a line cut off by a crash: drop it, redo that point
+            raw = raw[: raw.rfind(b"\n") + 1]
+            with open(self.journal, "wb") as handle:
+                handle.write(raw)
+        reader = csv.reader(io.StringIO(raw.decode("utf-8")))
+        header = next(reader, None)
+        if header != self.columns:
+            raise ScenarioError(f"{self.journal} has other columns than this sweep; give --overwrite")
+        for cells in reader:
+            if len(cells) != len(self.columns) or not cells[0].isdigit():
+                continue
+            index = int(cells[0])
+            if index < self.points and cells[self.columns.index("status")] in STATUSES:
+                self.rows.setdefault(index, cells)
+
+    def _read_parquet(self):
+        import pandas as pd
+
+        frame = pd.read_parquet(self.path)
+        for record in frame.astype(str).replace({"nan": "", "None": ""}).itertuples(index=False):
+            cells = list(record)
+            self.rows.setdefault(int(cells[0]), cells)
+        self._rewrite_journal()
+
+    @property
+    def done(self):
+        return set(self.rows)
+
+    def add(self, rows):
+        """Append finished rows (lists of cells) and make them durable."""
+        fresh = [cells for cells in rows if int(cells[0]) not in self.rows]
+        if not fresh:
+            return
+        with open(self.journal, "a", newline="", encoding="utf-8") as handle:
+            writer = csv.writer(handle, lineterminator="\n")
+            writer.writerows(fresh)
+            handle.flush()
+            os.fsync(handle.fileno())
+        for cells in fresh:
+            self.rows[int(cells[0])] = cells
+        if self.parquet:
+            self._write_parquet()
+
+    def _rewrite_journal(self):
+        tmp = self.journal.with_name(self.journal.name + ".tmp")
+        with open(tmp, "w", newline="", encoding="utf-8") as handle:
+            writer = csv.writer(handle, lineterminator="\n")
+            writer.writerow(self.columns)
+            writer.writerows(self.rows[k] for k in sorted(self.rows))
+            handle.flush()
+            os.fsync(handle.fileno())
+        os.replace(tmp, self.journal)
+
+    def _write_parquet(self):
+        frame = self.frame()
+        tmp = self.path.with_name(self.path.name + ".tmp")
+        frame.to_parquet(tmp, index=False)
+        os.replace(tmp, self.path)
+
+    def frame(self):
+        """The rows so far as a DataFrame, numbers parsed."""
+        import pandas as pd
+
+        text = io.StringIO()
+        writer = csv.writer(text, lineterminator="\n")
+        writer.writerow(self.columns)
+        writer.writerows(self.rows[k] for k in sorted(self.rows))
+        text.seek(0)
+        return pd.read_csv(text, keep_default_na=False, na_values=[""], dtype={"message": str, "status": str})
+
+    def finish(self):
+        """All points in: rewrite sorted (CSV) and drop the journal (Parquet)."""
+        self._rewrite_journal()
+        if self.parquet:
+            self._write_parquet()
+            self.journal.unlink()
+
+
+# -- the runner ---------------------------------------------------------------------------
+
+def _batches(items, size):
+    for k in range(0, len(items), size):
+        yield items[k:k + size]
+
+
+def run_sweep(data, out, workers=None, dask=None, overwrite=False, progress=None, batch_size=None):
+    """Run a sweep and write its results file.
+
+    Parameters
+    ----------
+    data : dict
+        The scenario mapping with its sweep section, as read from YAML.
+    out : str or os.PathLike
+        ``.csv`` or ``.parquet``.
+    workers : int, optional
+        Local worker processes; default the CPU count; 1 runs in this process.
+    dask : str, optional
+        ``"local"`` (start a LocalCluster of ``workers`` processes) or a scheduler address.
+    overwrite : bool
+        Replace a results file made by a different scenario.
+    progress : bool, optional
+        Show a progress bar; default when standard error is a terminal.
+    batch_size : int, optional
+        Points per task sent to a worker; default a few tasks per worker.
+
+    Returns
+    -------
+    dict
+        ``points``, ``computed`` (this run), ``failed`` (status not ok), ``path``.
+    """
+    import sys
+
+    keys, points = expand(data)
+    scenarios = validate(keys, points)
+    columns = columns_for(keys, scenarios)
+    results = ResultsFile(out, columns, fingerprint(data), len(points), overwrite)
+    todo = [(k, mapping) for k, (values, mapping) in enumerate(points) if k not in results.done]
+    workers = workers or os.cpu_count() or 1
+    size = batch_size or max(1, min(25, math.ceil(len(todo) / (4 * workers)) if todo else 1))
+    batches = list(_batches(todo, size))
+    show = sys.stderr.isatty() if progress is None else progress
+    failed = sum(1 for cells in results.rows.values() if cells[columns.index("status")] != "ok")
+    bar = None
+    if show:
+        from tqdm import tqdm
+
+        bar = tqdm(total=len(points), initial=len(results.done), unit="point", file=sys.stderr,
+                   desc="sweep", dynamic_ncols=True)
+        bar.set_postfix(failed=failed)
+
+    def record(done_batch):
+        nonlocal failed
+        rows = [make_row(columns, index, points[index][0], outcome) for index, outcome in done_batch]
+        results.add(rows)
+        failed += sum(1 for _, outcome in done_batch if outcome[0] != "ok")
+        if bar is not None:
+            bar.update(len(done_batch))
+            bar.set_postfix(failed=failed)
+
+    try:
+        if dask:
+            _run_dask(batches, dask, workers, record)
+        elif workers == 1 or len(batches) <= 1:
+            for batch in batches:
+                record(run_batch(batch))
+        else:
+            _run_processes(batches, workers, record)
+    finally:
+        if bar is not None:
+            bar.close()
+    results.finish()
+    return {"points": len(points), "computed": len(todo), "failed": failed, "path": str(out)}
+
+
+def _run_processes(batches, workers, record):
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor, as_completed
+
+    method = "fork" if "fork" in multiprocessing.get_all_start_methods() else "spawn"
+    pool = ProcessPoolExecutor(max_workers=workers, mp_context=multiprocessing.get_context(method))
+    try:
+        futures = [pool.submit(run_batch, batch) for batch in batches]
+        for future in as_completed(futures):
+            record(future.result())
+    except BaseException:
+        for future in futures:
+            future.cancel()
+        pool.shutdown(wait=False, cancel_futures=True)
+        raise
+    pool.shutdown()
+
+
+def _run_dask(batches, address, workers, record):
+    from distributed import Client, LocalCluster, as_completed
+
+    cluster = None
+    if address == "local":
+        cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
+                               dashboard_address=None, silence_logs=40)
+        client = Client(cluster)
+    else:
+        client = Client(address)
+    try:
+        futures = client.map(run_batch, batches, pure=False)
+        for future in as_completed(futures):
+            record(future.result())
+    finally:
+        client.close()
+        if cluster is not None:
+            cluster.close()

@@ -1,0 +1,278 @@
+"""Sweeps, resumable results files, parallel and Dask runs, gas comparison and optimisation."""
+
+import csv
+import json
+import os
+import signal
+import subprocess
+import sys
+import time
+
+import numpy as np
+import pytest
+
+from cycle import api, cli
+from cycle.errors import ScenarioError
+from cycle.studies import compare, optimize
+from cycle.sweep import expand, run_point, run_sweep, validate
+from properties import get_fluid
+
+BASE = {
+    "gas": "nitrogen", "low_pressure": "1.05 bar", "high_pressure": "200 bar",
+    "compressor": {"isothermal_efficiency": 0.6},
+    "recuperator": {"effectiveness": 0.97, "zones": 10},
+    "production": {"liquid_rate": "10 L/h"}, "heat_leak": "5 W",
+}
+
+
+def with_sweep(**sweep):
+    return dict(BASE, sweep=sweep)
+
+
+def read(path):
+    with open(path, newline="") as handle:
+        return list(csv.DictReader(handle))
+
+
+# -- points ---------------------------------------------------------------------------------
+
+def test_grid_zip_and_ranges():
+    keys, points = expand(with_sweep(high_pressure={"from": "100 bar", "to": "300 bar", "steps": 3},
+                                     gas=["nitrogen", "argon"]))
+    assert keys == ["high_pressure", "gas"] and len(points) == 6
+    assert [p[1]["high_pressure"] for p in points[::2]] == pytest.approx([100e5, 200e5, 300e5])
+    assert points[1][1]["gas"] == "argon" and points[0][1]["recuperator"]["effectiveness"] == 0.97
+    _, zipped = expand(with_sweep(mode="zip", high_pressure=["100 bar", "200 bar"],
+                                  **{"recuperator.effectiveness": [0.9, 0.95]}))
+    assert len(zipped) == 2 and zipped[1][1]["recuperator"]["effectiveness"] == 0.95
+    _, logs = expand(with_sweep(heat_leak={"from": "1 W", "to": "100 W", "steps": 3, "spacing": "log"}))
+    assert [p[1]["heat_leak"] for p in logs] == pytest.approx([1.0, 10.0, 100.0])
+    _, nested = expand(with_sweep(**{"aftercooler.outlet_temperature": ["305 K"]}))
+    assert nested[0][1]["aftercooler"] == {"outlet_temperature": "305 K"}
+
+
+@pytest.mark.parametrize("sweep, message", [
+    ({"recuperator.effectiveness": [0.9, 1.4]},
+     "sweep point 1 (recuperator.effectiveness = 1.4) is invalid: recuperator.effectiveness must be above 0 and at most 1, got 1.4"),
+    ({"recuperator.efectiveness": [0.9]}, "sweep.recuperator.efectiveness: not a scenario key; did you mean recuperator.effectiveness?"),
+    ({"high_pressure": ["200 K"]}, "sweep point 0 (high_pressure = '200 K') is invalid: high_pressure: expected a pressure"),
+    ({"mode": "zip", "high_pressure": ["100 bar", "200 bar"], "gas": ["argon"]}, "sweep.mode zip needs lists of one length"),
+    ({"high_pressure": {"from": "100 bar", "to": "200 bar"}}, "a range needs from, to and steps, missing steps"),
+    ({"high_pressure": {"from": "100 bar", "to": "200 bar", "steps": 3, "spacing": "cubic"}}, "spacing must be linear or log"),
+    ({"high_pressure": "200 bar"}, "sweep.high_pressure must be a list of values or a range"),
+    ({"recuperator": [1]}, "a section cannot be swept"),
+    ({"gas": {"from": 1, "to": 2, "steps": 2}}, "a range needs a numeric key"),
+    ({}, "sweep must map scenario keys"),
+])
+def test_invalid_sweeps_are_refused_before_any_point_runs(sweep, message, tmp_path):
+    out = tmp_path / "r.csv"
+    with pytest.raises(ScenarioError) as info:
+        run_sweep(with_sweep(**sweep), out)
+    assert message in str(info.value) and "\n" not in str(info.value)
+    assert not out.exists()
+
+
+def test_point_statuses(monkeypatch):
+    assert run_point(dict(BASE))[0] == "ok"
+    status, message, summary = run_point(dict(BASE, gas="hydrogen"))
+    assert status == "no-liquid" and "precooling" in message and summary == {}
+    assert run_point(dict(BASE, low_pressure="40 bar", high_pressure="200 bar"))[0] == "invalid"
+
+    import cycle.flowsheet
+
+    def broken(scenario, **options):
+        raise RuntimeError("solver fell over")
+
+    monkeypatch.setattr(cycle.flowsheet, "solve_scenario", broken)
+    assert run_point(dict(BASE)) == ("failed", "RuntimeError: solver fell over", {})
+
+
+# -- the results file -------------------------------------------------------------------
+
+SWEEP = with_sweep(high_pressure={"from": "60 bar", "to": "260 bar", "steps": 6}, gas=["nitrogen", "hydrogen"])
+
+
+def test_sweep_file_columns_and_values(tmp_path):
+    out = tmp_path / "r.csv"
+    outcome = run_sweep(SWEEP, out, workers=1)
+    rows = read(out)
+    assert outcome == {"points": 12, "computed": 12, "failed": 6, "path": str(out)}
+    assert [int(r["point"]) for r in rows] == list(range(12))
+    assert list(rows[0])[:5] == ["point", "high_pressure", "gas", "status", "message"]
+    assert float(rows[0]["high_pressure"]) == pytest.approx(60e5)  # SI in the key's own column
+    by_gas = {g: [r for r in rows if r["gas"] == g] for g in ("nitrogen", "hydrogen")}
+    assert {r["status"] for r in by_gas["hydrogen"]} == {"no-liquid"}
+    assert all(r["liquid_yield"] == "" and "precooling" in r["message"] for r in by_gas["hydrogen"])
+    one = api.run(dict(BASE, high_pressure=float(rows[4]["high_pressure"])))
+    assert float(rows[4]["liquid_yield"]) == one.summary()["liquid_yield"]  # exact: the same solve
+    assert float(rows[4]["liquid_rate_L_per_h"]) == pytest.approx(10.0)
+
+
+def test_rerun_computes_only_missing_points_and_drops_a_cut_line(tmp_path):
+    full = tmp_path / "full.csv"
+    run_sweep(SWEEP, full, workers=1)
+    part = tmp_path / "part.csv"
+    run_sweep(SWEEP, part, workers=1)
+    text = part.read_bytes()
+    lines = text.split(b"\n")
+    cut = b"\n".join(lines[:5]) + b"\n" + lines[5][: len(lines[5]) // 2]  # header, 4 rows, half a row
+    part.write_bytes(cut)
+    outcome = run_sweep(SWEEP, part, workers=1)
+    assert outcome["computed"] == 8
+    assert part.read_bytes() == full.read_bytes()
+
+
+def test_a_different_scenario_is_refused_unless_overwrite(tmp_path):
+    out = tmp_path / "r.csv"
+    run_sweep(SWEEP, out, workers=1)
+    changed = dict(SWEEP, heat_leak="9 W")
+    with pytest.raises(ScenarioError, match="holds results of a different scenario"):
+        run_sweep(changed, out, workers=1)
+    assert run_sweep(changed, out, workers=1, overwrite=True)["computed"] == 12
+    stranger = tmp_path / "mine.csv"
+    stranger.write_text("a,b\n1,2\n")
+    with pytest.raises(ScenarioError, match="was not written by this sweep"):
+        run_sweep(SWEEP, stranger, workers=1)
+
+
+def test_parallel_and_dask_runs_equal_the_serial_run(tmp_path):
+    serial, local, cluster = tmp_path / "s.csv", tmp_path / "p.csv", tmp_path / "d.csv"
+    run_sweep(SWEEP, serial, workers=1)
+    run_sweep(SWEEP, local, workers=2, batch_size=2)
+    run_sweep(SWEEP, cluster, workers=2, dask="local", batch_size=3)
+    assert local.read_bytes() == serial.read_bytes()
+    assert cluster.read_bytes() == serial.read_bytes()
+
+
+def test_parquet_output(tmp_path):
+    import pandas as pd
+
+    run_sweep(SWEEP, tmp_path / "r.csv", workers=1)
+    run_sweep(SWEEP, tmp_path / "r.parquet", workers=2)
+    frame = pd.read_parquet(tmp_path / "r.parquet")
+    csv_frame = pd.read_csv(tmp_path / "r.csv", keep_default_na=False, na_values=[""])
+    assert list(frame.columns) == list(csv_frame.columns) and len(frame) == 12
+    assert np.allclose(frame["figure_of_merit"].astype(float), csv_frame["figure_of_merit"].astype(float),
+                       equal_nan=True, rtol=0, atol=0)
+    assert not (tmp_path / "r.parquet.journal.csv").exists()
+
+
+def test_sigkill_then_rerun_gives_the_uninterrupted_file(tmp_path):
+    import yaml
+
+    scenario = tmp_path / "sweep.yaml"
+    scenario.write_text(yaml.safe_dump(dict(BASE, sweep={"high_pressure": {"from": "60 bar", "to": "300 bar",
+                                                                          "steps": 120}})))
+    out = tmp_path / "r.csv"
+    cmd = [sys.executable, "-m", "cycle.cli", "sweep", str(scenario), "--out", str(out), "--workers", "1"]
+    proc = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    deadline = time.time() + 90
+    while time.time() < deadline and proc.poll() is None:
+        if out.exists() and out.read_bytes().count(b"\n") > 20:
+            break
+        time.sleep(0.05)
+    killed = proc.poll() is None
+    if killed:
+        os.kill(proc.pid, signal.SIGKILL)
+    proc.wait(timeout=30)
+    assert killed, "the sweep finished before it could be interrupted"
+    lines_before = out.read_bytes().count(b"\n")
+    assert 20 < lines_before < 121
+    again = subprocess.run(cmd, capture_output=True, text=True, timeout=300)
+    assert again.returncode == 0, again.stderr
+    assert f"({121 - lines_before} computed now" in again.stderr or "computed now" in again.stderr
+    reference = tmp_path / "ref.csv"
+    run_sweep(yaml.safe_load(scenario.read_text()), reference, workers=2)
+    assert out.read_bytes() == reference.read_bytes()
+
+
+def test_cli_sweep(capsys, tmp_path):
+    import yaml
+
+    scenario = tmp_path / "s.yaml"
+    scenario.write_text(yaml.safe_dump(SWEEP))
+    out = tmp_path / "r.csv"
+    assert cli.main(["sweep", str(scenario), "--out", str(out), "--workers", "2"]) == 0
+    err = capsys.readouterr().err
+    assert "12 points" in err and "\r" not in err  # no progress bar when stderr is not a terminal
+    bad = tmp_path / "bad.yaml"
+    bad.write_text(yaml.safe_dump(with_sweep(**{"recuperator.effectiveness": [2]})))
+    assert cli.main(["sweep", str(bad), "--out", str(tmp_path / "x.csv")]) == 2
+    assert "recuperator.effectiveness = 2" in capsys.readouterr().err
+    assert cli.main(["sweep", str(scenario), "--out", str(tmp_path / "x.txt")]) == 2
+    assert cli.main(["sweep", str(scenario), "--out", str(out), "--workers", "0"]) == 2
+
+
+# -- optimisation and comparison --------------------------------------------------------
+
+IDEAL = {"gas": "nitrogen", "ambient_temperature": "300 K", "low_pressure": "1.01325 bar",
+         "high_pressure": "200 bar", "compressor": {"isothermal_efficiency": 1.0},
+         "recuperator": {"effectiveness": 1.0, "zones": 4}}
+
+
+@pytest.mark.parametrize("gas", ["nitrogen", "argon"])
+def test_ideal_yield_is_highest_where_the_compressed_gas_lies_on_the_inversion_curve(gas):
+    # y = (h1 - h2)/(h1 - hf) is largest where dh2/dp at T0 is zero, i.e. mu_JT(T0, p) = 0
+    # (mu_JT = -(dh/dp)_T / cp): the textbook optimum pressure of the simple cycle (Barron, 1985, sec. 3.4).
+    found = optimize(dict(IDEAL, gas=gas), [("high_pressure", "100 bar", "1000 bar")], "max-yield")
+    p_opt = found["vary"]["high_pressure"]
+    fluid = get_fluid(gas)
+    assert abs(fluid.jt_coefficient(300.0, p_opt) * 1e5) < 2e-4  # K/bar; the slope is ~1e-3 K/bar per bar
+    assert 300e5 < p_opt < 700e5
+    assert found["summary"]["liquid_yield"] >= api.run(dict(IDEAL, gas=gas, high_pressure=0.9 * p_opt)).liquid_yield
+
+
+def test_optimize_several_keys_and_json_contract(capsys, tmp_path):
+    import yaml
+
+    scenario = tmp_path / "dual.yaml"
+    scenario.write_text(yaml.safe_dump(dict(IDEAL, gas="air", compressor={"isothermal_efficiency": 0.6},
+                                            recuperator={"effectiveness": 0.98, "zones": 4},
+                                            dual_pressure={"intermediate_pressure": "60 bar",
+                                                           "recirculated_fraction": 0.5})))
+    argv = ["optimize", str(scenario), "--vary", "dual_pressure.recirculated_fraction", "--between", "0.2", "0.85",
+            "--vary", "dual_pressure.intermediate_pressure", "--between", "20 bar", "120 bar",
+            "--goal", "min-work-per-liquid", "--json"]
+    assert cli.main(argv) == 0
+    found = json.loads(capsys.readouterr().out)
+    assert set(found) >= {"vary", "goal", "summary"} and found["goal"] == "min-work-per-liquid"
+    i, p_i = found["vary"]["dual_pressure.recirculated_fraction"], found["vary"]["dual_pressure.intermediate_pressure"]
+    assert 0.2 <= i <= 0.85 and 20e5 <= p_i <= 120e5
+    start = api.run(yaml.safe_load(scenario.read_text())).summary()["work_kJ_per_kg_liquid"]
+    assert found["summary"]["work_kJ_per_kg_liquid"] < start
+    assert cli.main(["optimize", str(scenario), "--vary", "gas", "--between", "1", "2", "--goal", "max-yield"]) == 2
+    assert cli.main(["optimize", str(scenario), "--vary", "high_pressure", "--between", "300 bar", "100 bar",
+                     "--goal", "max-yield"]) == 2
+
+
+def test_compare_ranks_by_figure_of_merit(capsys):
+    rows = compare(dict(BASE), ["nitrogen", "argon", "hydrogen", "methane"])
+    assert [r["rank"] for r in rows] == [1, 2, 3, 4]
+    ok = [r for r in rows if r["status"] == "ok"]
+    assert [r["figure_of_merit"] for r in ok] == sorted((r["figure_of_merit"] for r in ok), reverse=True)
+    assert rows[-1]["gas"] == "hydrogen" and rows[-1]["status"] == "no-liquid"
+    assert rows[-1]["liquid_yield"] is None and "compressor_power_kW" in rows[0]
+    assert cli.main(["compare", "scenarios/nitrogen-bench.yaml", "--gases", "nitrogen,argon", "--json"]) == 0
+    listed = json.loads(capsys.readouterr().out)
+    assert {r["gas"] for r in listed} == {"nitrogen", "argon"}
+    assert all({"gas", "status", "liquid_yield", "figure_of_merit"} <= set(r) for r in listed)
+    assert cli.main(["compare", "scenarios/nitrogen-bench.yaml", "--gases", "nitrogen,unobtanium"]) == 2
+
+
+def test_compare_at_optimum_beats_the_given_pressure():
+    plain = {r["gas"]: r for r in compare(dict(BASE, high_pressure="100 bar"), ["nitrogen", "argon"])}
+    best = {r["gas"]: r for r in compare(dict(BASE, high_pressure="100 bar"), ["nitrogen", "argon"],
+                                         at_optimum=True, between=("50 bar", "400 bar"))}
+    for gas in ("nitrogen", "argon"):
+        assert best[gas]["figure_of_merit"] >= plain[gas]["figure_of_merit"]
+        assert 50e5 <= best[gas]["high_pressure"] <= 400e5
+
+
+def test_api_for_notebooks(tmp_path):
+    frame = api.sweep(BASE, {"recuperator.effectiveness": [0.95, 0.97, 0.99]})
+    assert list(frame["recuperator.effectiveness"]) == [0.95, 0.97, 0.99]
+    assert frame["liquid_yield"].is_monotonic_increasing
+    result = api.run("scenarios/argon-unit.yaml")
+    assert result.to_frame().loc[1, "stream"] == "compressor suction"
+    table = api.compare("scenarios/nitrogen-bench.yaml", ["nitrogen", "argon"])
+    assert list(table["rank"]) == [1, 2]
