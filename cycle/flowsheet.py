@@ -235,35 +235,37 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
 
 
 def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
-    """Duty that a recuperator of the given UA passes."""
+    """Duty that a recuperator of the given UA passes.
+
+    Where the streams touch or cross, UA is infinite; the residual there is a large finite
+    stand-in (a thousand times the target), which Brent's method treats as any other value
+    of the right sign.
+    """
     key = section.recuperator.key
     target = section.recuperator.spec.ua
-
-    def pinch(duty):
-        return section.profile(duty).min_approach
-
-    # The largest duty the streams allow: where they touch (minimum approach 0).
-    Q_touch = Q_hi if pinch(Q_hi) >= 0 else brentq(pinch, 0.0, Q_hi, xtol=tol, maxiter=maxiter)
+    stand_in = 1e3 * target
 
     def ua_abs(duty):
         m = flow_of(duty)
-        return math.inf if not math.isfinite(m) else m * section.profile(duty).ua()
+        if not math.isfinite(m):
+            return stand_in
+        ua = section.profile(duty).ua()
+        return m * ua if math.isfinite(ua) else stand_in
 
-    hi = Q_touch * (1 - 1e-9)
-    lo = 0.0
-    if lowest_duty > 0.0 or not math.isfinite(flow_of(0.0)):
+    lo, hi = 0.0, Q_hi
+    if flow_of(0.0) != flow_of(Q_hi):
         # The flow is m_liq / y: UA(Q) falls, then rises as the streams close in.  The design
         # point is on the rising branch (least compressor flow).
-        found = minimize_scalar(ua_abs, bounds=(lowest_duty + 1e-9 * Q_touch, hi), method="bounded",
-                                options={"xatol": 1e-6 * Q_touch})
+        found = minimize_scalar(ua_abs, bounds=(lowest_duty + 1e-9 * Q_hi, Q_hi), method="bounded",
+                                options={"xatol": 1e-6 * Q_hi})
         lo = found.x
         if found.fun > target:
             raise NoLiquefactionError(
                 f"{key}.ua {target:g} W/K is too small for this production: the least UA that makes it "
                 f"at these conditions is {found.fun:.4g} W/K (and it needs {flow_of(lo) * 3600:.4g} kg/h "
                 f"of compressor flow)")
-    elif ua_abs(hi) < target:
-        hi = Q_touch
+    if ua_abs(hi) < target:  # the streams never touch inside the bracket
+        hi = Q_hi
     return brentq(lambda d: ua_abs(d) - target, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
                   full_output=True, disp=False)
 
