@@ -193,8 +193,16 @@ def format_optimum(found):
     s = found["summary"]
     lines = [f"optimum for {found['goal']} ({found['evaluations']} evaluations, "
              f"{'converged' if found['converged'] else 'NOT converged'})"]
+    from cycle.sweep import _kind_of
+
     for key, value in found["vary"].items():
-        lines.append(_line(key + " (SI)", value, "", "{:.6g}"))
+        kind = _kind_of(key)
+        if kind == "pressure":
+            lines.append(_line(key, value / 1e5, "bar", "{:.2f}"))
+        elif kind in ("temperature", "temperature_difference"):
+            lines.append(_line(key, value, "K", "{:.2f}"))
+        else:
+            lines.append(_line(key + " (SI)", value, "", "{:.6g}"))
     lines += [
         _line("liquid yield", s["liquid_yield"], "", "{:.5f}"),
         _line("work per kg liquid", s["work_kJ_per_kg_liquid"], "kJ/kg", "{:.0f}"),

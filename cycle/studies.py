@@ -100,7 +100,7 @@ def optimize(data, vary, goal, xrtol=1e-6, maxiter=200):
         raise NoLiquefactionError(f"no liquid anywhere the search went ({ranges}, SI units)")
     status, text, summary = run_point(mapping_at(best))
     return {
-        "vary": {key: lo + min(max(u, 0.0), 1.0) * (hi - lo) for (key, lo, hi), u in zip(bounds, best)},
+        "vary": {key: float(lo + min(max(u, 0.0), 1.0) * (hi - lo)) for (key, lo, hi), u in zip(bounds, best)},
         "goal": goal,
         "summary": summary,
         "evaluations": calls["n"],
