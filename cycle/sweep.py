@@ -446,8 +446,12 @@ def run_sweep(data, out, workers=None, dask=None, overwrite=False, progress=None
     if show:
         from tqdm import tqdm
 
+        try:
+            width = os.get_terminal_size(sys.stderr.fileno()).columns
+        except OSError:
+            width = 0
         bar = tqdm(total=len(points), initial=len(results.done), unit="point", file=sys.stderr,
-                   desc="sweep", dynamic_ncols=True)
+                   desc="sweep", ncols=width if width >= 40 else 100)
         bar.set_postfix(failed=failed)
 
     def record(done_batch):

@@ -276,3 +276,41 @@ def test_api_for_notebooks(tmp_path):
     assert result.to_frame().loc[1, "stream"] == "compressor suction"
     table = api.compare("scenarios/nitrogen-bench.yaml", ["nitrogen", "argon"])
     assert list(table["rank"]) == [1, 2]
+
+
+def _sweep_file(tmp_path, steps):
+    import yaml
+
+    scenario = tmp_path / "sweep.yaml"
+    scenario.write_text(yaml.safe_dump(dict(BASE, sweep={"high_pressure": {"from": "60 bar", "to": "300 bar",
+                                                                          "steps": steps}})))
+    return scenario
+
+
+def test_ctrl_c_keeps_the_rows_and_says_how_to_finish(tmp_path):
+    scenario, out = _sweep_file(tmp_path, 150), tmp_path / "r.csv"
+    cmd = [sys.executable, "-m", "cycle.cli", "sweep", str(scenario), "--out", str(out), "--workers", "2"]
+    proc = subprocess.Popen(cmd, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    deadline = time.time() + 90
+    while time.time() < deadline and proc.poll() is None:
+        if out.exists() and out.read_bytes().count(b"\n") > 10:
+            break
+        time.sleep(0.05)
+    assert proc.poll() is None, "the sweep finished before it could be interrupted"
+    proc.send_signal(signal.SIGINT)
+    _, err = proc.communicate(timeout=60)
+    assert proc.returncode == 130
+    assert "run the same command again" in err and "Traceback" not in err
+    kept = out.read_bytes().count(b"\n") - 1
+    assert 10 <= kept < 150
+    again = subprocess.run(cmd, capture_output=True, text=True, timeout=300)
+    assert again.returncode == 0 and f"({150 - kept} computed now" in again.stderr
+    assert len(read(out)) == 150
+
+
+def test_progress_bar_shows_points_failures_and_time_left(tmp_path, capsys):
+    run_sweep(SWEEP, tmp_path / "r.csv", workers=1, progress=True)
+    shown = capsys.readouterr().err
+    assert "12/12" in shown and "failed=6" in shown and "<00:00" in shown  # done, failures, time left
+    run_sweep(SWEEP, tmp_path / "q.csv", workers=1)  # stderr is not a terminal here: quiet
+    assert capsys.readouterr().err == ""
