@@ -46,6 +46,29 @@ def _parser():
     run.add_argument("scenario", metavar="SCENARIO.yaml", help="scenario file")
     run.add_argument("--json", action="store_true",
                      help="print one JSON object (scenario, summary, states, warnings) and nothing else")
+    run.add_argument("--plots", metavar="DIR",
+                     help="also write the T-s diagram, recuperator profiles and loss chart (PNG and SVG) into DIR")
+
+    report = sub.add_parser(
+        "report", help="one self-contained HTML report of a scenario (figures embedded)",
+        description="Solve a scenario and write one HTML file with the scenario as given, the summary with "
+                    "units, the state and exergy tables, warnings, the figures, the method and references, "
+                    "and the safety cautions. It needs no network to view.",
+        epilog=CAUTIONS, formatter_class=_Formatter)
+    report.add_argument("scenario", metavar="SCENARIO.yaml")
+    report.add_argument("--out", required=True, metavar="FILE.html")
+
+    plot = sub.add_parser(
+        "plot", help="chart sweep results: one quantity against another, a line per category",
+        description="Draw a column of a sweep results file against another, one line per value of --by; "
+                    "points that made no liquid or failed are marked along the bottom axis.",
+        epilog=CAUTIONS, formatter_class=_Formatter)
+    plot.add_argument("results", metavar="RESULTS.csv", help="results of lhsim sweep (.csv or .parquet)")
+    plot.add_argument("--x", required=True, metavar="KEY")
+    plot.add_argument("--y", required=True, metavar="KEY")
+    plot.add_argument("--by", metavar="KEY", help="one line per value of this column (e.g. gas)")
+    plot.add_argument("--out", metavar="FILE",
+                      help="image file, .png or .svg (default: both, named after the results and the keys)")
 
     sweep = sub.add_parser(
         "sweep", help="run every point of a scenario's sweep section into a CSV or Parquet file",
@@ -117,7 +140,7 @@ def main(argv=None):
     """Entry point of the ``lhsim`` console script; returns the exit status."""
     args = _parser().parse_args(argv)
     commands = {"run": _cmd_run, "gas": _cmd_gas, "sweep": _cmd_sweep, "compare": _cmd_compare,
-                "optimize": _cmd_optimize}
+                "optimize": _cmd_optimize, "report": _cmd_report, "plot": _cmd_plot}
     try:
         return commands[args.command](args)
     except BrokenPipeError:
@@ -160,6 +183,82 @@ def _cmd_run(args):
 
         print(format_result(result))
         print(SHORT_CAUTION)
+    if args.plots:
+        from cycle.plots import write_figures
+
+        try:
+            paths = write_figures(result, args.plots)
+        except OSError as err:
+            return _fail(f"--plots: cannot write into {args.plots}: {err.strerror}")
+        print(f"lhsim: wrote {len(paths)} figures into {args.plots}", file=sys.stderr)
+    return 0
+
+
+def _cmd_report(args):
+    from cycle.errors import NoLiquefactionError, ScenarioError
+    from cycle.scenario import load_scenario
+
+    if not args.out.lower().endswith((".html", ".htm")):
+        return _fail(f"--out must be an .html file, got {args.out}")
+    try:
+        scenario = load_scenario(args.scenario)
+        from cycle.flowsheet import solve_scenario
+
+        result = solve_scenario(scenario)
+    except ScenarioError as err:
+        return _fail(str(err))
+    except NoLiquefactionError as err:
+        return _fail(str(err), EXIT_NO_LIQUID)
+    from cycle.report_html import build_report
+
+    with open(args.scenario, encoding="utf-8") as handle:
+        text = handle.read()
+    try:
+        with open(args.out, "w", encoding="utf-8") as handle:
+            handle.write(build_report(result, text))
+    except OSError as err:
+        return _fail(f"--out: cannot write {args.out}: {err.strerror}")
+    print(f"lhsim: wrote {args.out}", file=sys.stderr)
+    return 0
+
+
+def _cmd_plot(args):
+    import pathlib
+
+    from cycle.errors import ScenarioError
+
+    path = pathlib.Path(args.results)
+    if not path.exists():
+        return _fail(f"results file {path} not found")
+    import pandas as pd
+
+    try:
+        if path.suffix.lower() == ".parquet":
+            frame = pd.read_parquet(path)
+        else:
+            frame = pd.read_csv(path, keep_default_na=False, na_values=[""], dtype={"message": str})
+    except Exception as err:  # any unreadable file: say so in one line
+        return _fail(f"results file {path} could not be read as a table: {err}")
+    if args.out and not args.out.lower().endswith((".png", ".svg")):
+        return _fail(f"--out must end in .png or .svg, got {args.out}")
+    from cycle.plots import save, sweep_chart
+
+    try:
+        fig, _ = sweep_chart(frame, args.x, args.y, args.by)
+    except ScenarioError as err:
+        return _fail(str(err))
+    if args.out:
+        outs = [args.out]
+    else:
+        stem = path.with_suffix("")
+        name = f"{stem}-{args.y}-vs-{args.x}" + (f"-by-{args.by}" if args.by else "")
+        outs = [f"{name}.png", f"{name}.svg"]
+    for out in outs:
+        fig.savefig(out, bbox_inches="tight")
+    import matplotlib.pyplot as plt
+
+    plt.close(fig)
+    print(f"lhsim: wrote {', '.join(outs)}", file=sys.stderr)
     return 0
 
 

@@ -1,0 +1,421 @@
+"""Figures of a solved cycle and of sweep results (matplotlib, non-interactive backend).
+
+Each figure function returns ``(figure, data)``: ``data`` is exactly what was drawn, so tests
+check the drawing against the results rather than only that a file appeared.
+
+Style (our own): the Okabe-Ito colour-blind-safe palette, warm high-pressure lines in
+vermilion, cold return lines in blue, liquid in bluish green, saturation dome in grey; units on
+every axis.
+"""
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+PALETTE = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#F0E442", "#000000"]
+HOT, COLD, LIQUID, DOME, INK = "#D55E00", "#0072B2", "#009E73", "#8C8C8C", "#222222"
+WORK = "#CC79A7"
+STYLE = {
+    "figure.dpi": 100, "savefig.dpi": 150, "font.size": 10, "axes.titlesize": 11, "axes.labelsize": 10,
+    "axes.grid": True, "grid.color": "#E3E3E3", "grid.linewidth": 0.7, "axes.spines.top": False,
+    "axes.spines.right": False, "axes.prop_cycle": None, "legend.frameon": False,
+    "font.family": "DejaVu Sans",
+}
+
+
+def _pyplot():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    from cycler import cycler
+
+    style = dict(STYLE, **{"axes.prop_cycle": cycler(color=PALETTE)})
+    plt.rcParams.update(style)
+    return plt
+
+
+# -- T-s diagram --------------------------------------------------------------------------
+
+@dataclass
+class TsData:
+    """What the T-s diagram draws.
+
+    Attributes
+    ----------
+    points : list of (int, float, float)
+        State number, specific entropy [J/(kg K)], temperature [K]: one per row of the state table.
+    paths : list of (str, str, numpy.ndarray, numpy.ndarray)
+        Kind (compression, isobar, isenthalp, split, mixing), label, entropy and temperature arrays.
+    dome : (numpy.ndarray, numpy.ndarray)
+        Entropy and temperature of the saturation curve, liquid side then vapour side.
+    critical : (float, float)
+        Entropy [J/(kg K)] and temperature [K] of the critical point.
+    """
+
+    points: list
+    paths: list = field(default_factory=list)
+    dome: tuple = ()
+    critical: tuple = ()
+
+
+def _dome(fluid, n=120):
+    p = np.geomspace(fluid.p_triple * 1.0001, fluid.p_critical * (1 - 1e-5), n)
+    liquid = [fluid.saturated_liquid(float(pk)) for pk in p]
+    vapour = [fluid.saturated_vapour(float(pk)) for pk in p]
+    s = np.array([st.s for st in liquid] + [st.s for st in vapour[::-1]])
+    T = np.array([st.T for st in liquid] + [st.T for st in vapour[::-1]])
+    return s, T
+
+
+def _isobar(fluid, a, b, n=30):
+    p = np.linspace(a.p, b.p, n)
+    h = np.linspace(a.h, b.h, n)
+    states = fluid.states_ph(p, h)
+    return np.array([st.s for st in states]), np.array([st.T for st in states])
+
+
+def _isenthalp(fluid, a, b, n=30):
+    p = np.geomspace(a.p, b.p, n)
+    states = fluid.states_ph(p, np.full(n, a.h))
+    return np.array([st.s for st in states]), np.array([st.T for st in states])
+
+
+def _compression(fluid, a, b, isothermal, n=30):
+    """Compressor path: for the isothermal model temperature varies linearly with log p between
+    the end states; for an adiabatic stage entropy does (a polytropic-like path)."""
+    p = np.geomspace(a.p, b.p, n)
+    frac = np.linspace(0.0, 1.0, n)
+    if isothermal:
+        states = [fluid.state_tp(a.T + f * (b.T - a.T), float(pk)) for f, pk in zip(frac, p)]
+    else:
+        states = [fluid.state_ps(float(pk), a.s + f * (b.s - a.s)) for f, pk in zip(frac, p)]
+        states[-1] = b
+    return np.array([st.s for st in states]), np.array([st.T for st in states])
+
+
+def _edges(names):
+    """(kind, from-name, to-name) of every path between numbered states, by the flowsheet's names."""
+    def has(name):
+        return name in names
+
+    edges = []
+    comp = [n for n in names if "discharge" in n or "intercooler" in n or n.startswith("compressor suction")
+            or n.startswith("intermediate mixing")]
+    for a, b in zip(comp, comp[1:]):
+        if b.startswith("intermediate mixing"):
+            edges.append(("mixing", a, b))
+        elif "intercooler" in b:
+            edges.append(("isobar", a, b))
+        else:
+            edges.append(("compression", a, b))
+    after = next(n for n in names if n.startswith("aftercooler outlet"))
+    edges.append(("isobar", comp[-1], after))
+    if has("warm recuperator high-pressure outlet, precooler inlet"):  # precooled
+        chain = [after, "warm recuperator high-pressure outlet, precooler inlet",
+                 "precooler outlet, cold recuperator high-pressure inlet",
+                 "cold recuperator high-pressure outlet, valve inlet"]
+        edges += [("isobar", a, b) for a, b in zip(chain, chain[1:])]
+        edges.append(("isenthalp", chain[-1], "valve outlet, separator inlet"))
+        sep_in = "valve outlet, separator inlet"
+        vapour = "separator vapour, cold recuperator low-pressure inlet"
+        back = [vapour, "cold recuperator low-pressure outlet, warm recuperator low-pressure inlet",
+                "warm recuperator low-pressure outlet"]
+        edges += [("isobar", a, b) for a, b in zip(back, back[1:])]
+        ret = back[-1]
+    elif has("first valve outlet (intermediate pressure)"):  # dual pressure
+        hp_out = "recuperator high-pressure outlet, first valve inlet"
+        mid = "first valve outlet (intermediate pressure)"
+        sep_in = "second valve outlet, separator inlet"
+        vapour = "separator vapour, recuperator low-pressure inlet"
+        edges += [("isobar", after, hp_out), ("isenthalp", hp_out, mid), ("isenthalp", mid, sep_in),
+                  ("isobar", vapour, "recuperator low-pressure outlet"),
+                  ("isobar", mid, "recuperator intermediate-pressure outlet"),
+                  ("mixing", "recuperator intermediate-pressure outlet", "intermediate mixing outlet, high-pressure section suction")]
+        ret = "recuperator low-pressure outlet"
+    else:
+        hp_out = "recuperator high-pressure outlet, valve inlet"
+        sep_in = "valve outlet, separator inlet"
+        vapour = "separator vapour, recuperator low-pressure inlet"
+        edges += [("isobar", after, hp_out), ("isenthalp", hp_out, sep_in),
+                  ("isobar", vapour, "recuperator low-pressure outlet")]
+        ret = "recuperator low-pressure outlet"
+    suction = comp[0]
+    edges += [("split", sep_in, "liquid product"), ("split", sep_in, vapour),
+              ("mixing", ret, suction), ("mixing", "make-up gas", suction)]
+    return edges
+
+
+def ts_data(result):
+    """Compute what :func:`ts_diagram` draws (:class:`TsData`)."""
+    from properties import get_fluid
+
+    fluid = get_fluid(result.scenario.gas)
+    by_name = {st.name: st.state for st in result.states}
+    names = [st.name for st in result.states]
+    isothermal = result.scenario.compressor.isothermal_efficiency is not None
+    data = TsData(points=[(st.number, st.state.s, st.state.T) for st in result.states])
+    data.dome = _dome(fluid)
+    crit = fluid.state_tp(fluid.T_critical * (1 + 1e-6), fluid.p_critical * (1 + 1e-6))
+    data.critical = (crit.s, crit.T)
+    for kind, a_name, b_name in _edges(names):
+        a, b = by_name[a_name], by_name[b_name]
+        if kind == "compression":
+            s, T = _compression(fluid, a, b, isothermal)
+        elif kind == "isobar":
+            s, T = _isobar(fluid, a, b)
+        elif kind == "isenthalp":
+            s, T = _isenthalp(fluid, a, b)
+        else:
+            s, T = np.array([a.s, b.s]), np.array([a.T, b.T])
+        data.paths.append((kind, f"{a_name} -> {b_name}", s, T))
+    return data
+
+
+def ts_diagram(result):
+    """The cycle on a temperature-entropy diagram with the gas's saturation dome.
+
+    Returns
+    -------
+    (matplotlib.figure.Figure, TsData)
+    """
+    plt = _pyplot()
+    data = ts_data(result)
+    fig, ax = plt.subplots(figsize=(8.0, 6.0))
+    ax.set_axisbelow(True)
+    s_dome, T_dome = data.dome
+    ax.fill(s_dome / 1e3, T_dome, color=DOME, alpha=0.12, lw=0)
+    ax.plot(s_dome / 1e3, T_dome, color=DOME, lw=1.3, label="saturation curve")
+    ax.plot([data.critical[0] / 1e3], [data.critical[1]], marker="D", color=DOME, ms=6, ls="none",
+            label="critical point")
+    style = {"compression": dict(color=WORK, lw=2.0), "isobar": dict(lw=2.0),
+             "isenthalp": dict(color=COLD, lw=2.0, ls=(0, (5, 2))),
+             "split": dict(color=LIQUID, lw=1.2, ls=":"), "mixing": dict(color=INK, lw=1.0, ls=":")}
+    T0 = result.scenario.ambient_temperature
+    labelled = set()
+    for kind, label, s, T in data.paths:
+        opts = dict(style[kind])
+        if kind == "isobar":
+            opts["color"] = HOT if np.mean(np.diff(T)) < 0 else COLD
+        legend = {"compression": "compression", "isenthalp": "throttle (constant enthalpy)",
+                  "split": "separator split", "mixing": "mixing"}.get(kind)
+        if kind == "isobar":
+            legend = "cooling at constant pressure" if opts["color"] == HOT else "warming at constant pressure"
+        ax.plot(s / 1e3, T, label=legend if legend not in labelled else None, **opts)
+        labelled.add(legend)
+    s_span = np.ptp([p[1] for p in data.points] + list(s_dome)) or 1.0
+    T_span = np.ptp([p[2] for p in data.points] + list(T_dome)) or 1.0
+    placed = []
+    for number, s, T in data.points:
+        ax.plot(s / 1e3, T, "o", color="white", mec=INK, ms=5, zorder=5)
+        # Points that nearly coincide (aftercooler outlet and discharge, say) get their labels
+        # stacked instead of printed over each other.
+        near = sum(1 for ps, pT in placed if abs(ps - s) < 0.02 * s_span and abs(pT - T) < 0.02 * T_span)
+        placed.append((s, T))
+        ax.annotate(str(number), (s / 1e3, T), xytext=(5 + 9 * near, 4), textcoords="offset points",
+                    fontsize=9, color=INK, zorder=6)
+    ax.axhline(T0, color=INK, lw=0.6, alpha=0.4, label=f"ambient temperature {T0:g} K")
+    sc = result.scenario
+    ax.set_xlabel("specific entropy s [kJ/(kg K)]")
+    ax.set_ylabel("temperature T [K]")
+    ax.set_title(f"{sc.name or sc.gas}: T-s diagram ({sc.layout} cycle, {sc.gas})")
+    ax.legend(loc="upper left", fontsize=8)
+    fig.tight_layout()
+    return fig, data
+
+
+# -- exchanger profiles -------------------------------------------------------------------
+
+def profile_data(result):
+    """Per recuperator: duty axis, both temperature arrays, and the minimum approach mark."""
+    m = result.compressor_flow
+    out = {}
+    for name, rec in result.recuperators.items():
+        prof = rec.profile
+        duty = prof.duty * (m / 1e3 if m else 1e-3)
+        k = prof.min_approach_index
+        out[name] = {"duty": duty, "duty_unit": "kW" if m else "kJ/kg of compressor flow",
+                     "hot_T": prof.hot_T, "cold_T": prof.cold_T,
+                     "pinch": (float(duty[k]), float(prof.hot_T[k]), float(prof.cold_T[k]), rec.min_approach)}
+    return out
+
+
+def exchanger_profiles(result):
+    """Temperature of every stream against cumulative duty, one panel per recuperator."""
+    plt = _pyplot()
+    data = profile_data(result)
+    fig, axes = plt.subplots(1, len(data), figsize=(6.2 * len(data), 4.6), squeeze=False)
+    cold_label = "cold composite (two return streams)" if result.scenario.layout == "dual-pressure" else "return stream"
+    for ax, (name, d) in zip(axes[0], data.items()):
+        ax.plot(d["duty"], d["hot_T"], color=HOT, lw=2.0, label="high-pressure stream")
+        ax.plot(d["duty"], d["cold_T"], color=COLD, lw=2.0, label=cold_label)
+        q, th, tc, dT = d["pinch"]
+        ax.plot([q, q], [tc, th], color=INK, lw=1.2)
+        ax.plot([q, q], [tc, th], "_", color=INK, ms=10)
+        ax.annotate(f"minimum approach {dT:.2f} K", (q, 0.5 * (th + tc)), xytext=(0.97, 0.12),
+                    textcoords="axes fraction", ha="right", va="bottom", fontsize=9, color=INK,
+                    arrowprops=dict(arrowstyle="->", color=INK, lw=0.8))
+        ax.set_xlabel(f"cumulative duty from the cold end [{d['duty_unit']}]")
+        ax.set_ylabel("temperature T [K]")
+        ax.set_title(name.replace("_", " "))
+        ax.legend(loc="upper left", fontsize=8)
+    fig.tight_layout()
+    return fig, data
+
+
+# -- loss chart ---------------------------------------------------------------------------
+
+def loss_data(result):
+    """Bars from ideal to actual work [kJ/kg liquid]: (label, start, height, share in percent)."""
+    total = result.work_per_kg_liquid / 1e3
+    bars = [("ideal work", 0.0, result.ideal_work_per_kg_liquid / 1e3)]
+    level = bars[0][2]
+    for name, value in result.exergy_losses_per_kg_liquid().items():
+        bars.append((name.replace("_", " "), level, value / 1e3))
+        level += value / 1e3
+    return {"bars": [(label, start, height, 100.0 * height / total) for label, start, height in bars],
+            "actual": total}
+
+
+def loss_chart(result):
+    """From ideal work to actual work: one bar per unit's exergy loss, largest first."""
+    plt = _pyplot()
+    data = loss_data(result)
+    bars = data["bars"]
+    fig, ax = plt.subplots(figsize=(8.0, 0.42 * len(bars) + 1.8))
+    y = np.arange(len(bars) + 1)[::-1]
+    for (label, start, height, share), yk in zip(bars, y[:-1]):
+        colour = LIQUID if label == "ideal work" else HOT
+        ax.barh(yk, height, left=start, color=colour, height=0.62)
+        ax.text(start + height, yk, f"  {height:,.0f} ({share:.1f} %)", va="center", fontsize=8, color=INK)
+    ax.barh(y[-1], data["actual"], color=COLD, height=0.62)
+    ax.text(data["actual"], y[-1], f"  {data['actual']:,.0f} (100 %)", va="center", fontsize=8, color=INK)
+    ax.set_yticks(y, [b[0] for b in bars] + ["actual work"])
+    ax.set_xlabel("work and exergy destroyed per kg of liquid [kJ/kg]")
+    ax.set_xlim(0, data["actual"] * 1.22)
+    ax.set_title("Where the work goes: ideal work plus each unit's exergy loss")
+    ax.grid(axis="y", visible=False)
+    ax.set_axisbelow(True)
+    fig.tight_layout()
+    return fig, data
+
+
+# -- sweep charts -------------------------------------------------------------------------
+
+# Columns in SI that read better in another unit: key -> (factor, unit).
+_DISPLAY = {"pressure": (1e-5, "bar"), "temperature": (1.0, "K"), "temperature_difference": (1.0, "K"),
+            "power": (1.0, "W"), "mass_flow": (3600.0, "kg/h"), "thermal_conductance": (1.0, "W/K"),
+            "specific_energy": (1e-3, "kJ/kg")}
+_SUFFIX_UNITS = [("_kJ_per_kg_compressed", "kJ/kg of compressor flow"), ("_kJ_per_kg_liquid", "kJ/kg of liquid"),
+                 ("_W_per_K_per_kg_per_s", "W/K per kg/s"), ("_W_per_K", "W/K"), ("_kg_per_kg_liquid", "kg/kg of liquid"),
+                 ("_kg_per_h", "kg/h"), ("_L_per_h", "L/h"), ("_kW", "kW"), ("_W", "W"), ("_K", "K")]
+
+
+def axis_label(key):
+    """Quantity and unit for a column: swept keys from the scenario schema, summary keys from
+    the unit their name ends with (as in the glossary).  Returns (label, factor to apply)."""
+    from cycle.sweep import _kind_of
+
+    if key in ("liquid_yield", "figure_of_merit", "energy_balance_residual") or key.endswith(
+            ("_effectiveness", "_position", "_quality")):
+        return f"{key.replace('_', ' ')} [-]", 1.0
+    for suffix, unit in _SUFFIX_UNITS:
+        if key.endswith(suffix):
+            return f"{key[: -len(suffix)].replace('_', ' ')} [{unit}]", 1.0
+    try:
+        kind = _kind_of(key)
+    except Exception:
+        return key.replace("_", " "), 1.0
+    kind = kind[0] if isinstance(kind, tuple) else kind
+    if kind in _DISPLAY:
+        factor, unit = _DISPLAY[kind]
+        return f"{key.replace('_', ' ').replace('.', ': ')} [{unit}]", factor
+    return f"{key.replace('_', ' ').replace('.', ': ')} [-]", 1.0
+
+
+def sweep_data(frame, x, y, by=None):
+    """Lines per category and the points that made no liquid or failed."""
+    from cycle.errors import ScenarioError
+
+    for key in [x, y] + ([by] if by else []):
+        if key not in frame.columns:
+            raise ScenarioError(f"column {key} is not in the results; columns: {', '.join(map(str, frame.columns))}")
+    x_label, fx = axis_label(x)
+    y_label, fy = axis_label(y)
+    groups = [(None, frame)] if not by else list(frame.groupby(by, sort=False))
+    lines, misses = [], []
+    for value, part in groups:
+        part = part.sort_values(x)
+        ok = part[part["status"] == "ok"] if "status" in part else part
+        bad = part[part["status"] != "ok"] if "status" in part else part.iloc[0:0]
+        lines.append((value, ok[x].to_numpy(float) * fx, ok[y].to_numpy(float) * fy))
+        misses.append((value, bad[x].to_numpy(float) * fx, list(bad["status"]) if len(bad) else []))
+    return {"x_label": x_label, "y_label": y_label, "lines": lines, "misses": misses, "by": by}
+
+
+def sweep_chart(frame, x, y, by=None):
+    """``y`` against ``x`` from a sweep results table, one line per value of ``by``; points
+    that made no liquid or failed are marked along the bottom."""
+    plt = _pyplot()
+    data = sweep_data(frame, x, y, by)
+    fig, ax = plt.subplots(figsize=(7.5, 5.0))
+    markers = ["o", "s", "^", "D", "v", "P", "X", "*"]
+    for k, ((value, xs, ys), (_, bx, statuses)) in enumerate(zip(data["lines"], data["misses"])):
+        colour = PALETTE[k % len(PALETTE)]
+        label = f"{by} = {value}" if by else None
+        if len(xs):
+            ax.plot(xs, ys, marker=markers[k % len(markers)], ms=4, color=colour, lw=1.8, label=label)
+        if len(bx):
+            ax.plot(bx, np.zeros_like(bx), "x", color=colour, ms=7, mew=1.6, transform=ax.get_xaxis_transform(),
+                    clip_on=False, label=(f"{label}: no liquid or failed" if by else "no liquid or failed"))
+    ax.set_xlabel(data["x_label"])
+    ax.set_ylabel(data["y_label"])
+    ax.set_title(f"{data['y_label'].split(' [')[0]} against {data['x_label'].split(' [')[0]}")
+    if by or any(len(m[1]) for m in data["misses"]):
+        ax.legend(fontsize=8)
+    fig.tight_layout()
+    return fig, data
+
+
+# -- writing ------------------------------------------------------------------------------
+
+FIGURES = {"ts-diagram": ts_diagram, "exchanger-profiles": exchanger_profiles, "losses": loss_chart}
+
+
+def save(fig, path):
+    """Save a figure (format from the file name: .png or .svg) and close it."""
+    import matplotlib.pyplot as plt
+
+    fig.savefig(path, bbox_inches="tight")
+    plt.close(fig)
+
+
+def write_figures(result, folder, formats=("png", "svg")):
+    """Write every figure of a result into ``folder``; return the paths written."""
+    import pathlib
+
+    folder = pathlib.Path(folder)
+    folder.mkdir(parents=True, exist_ok=True)
+    paths = []
+    for name, draw in FIGURES.items():
+        fig, _ = draw(result)
+        for fmt in formats:
+            path = folder / f"{name}.{fmt}"
+            fig.savefig(path, bbox_inches="tight")
+            paths.append(path)
+        import matplotlib.pyplot as plt
+
+        plt.close(fig)
+    return paths
+
+
+def figure_png(fig):
+    """A figure as PNG bytes (for embedding), closing it."""
+    import io
+
+    import matplotlib.pyplot as plt
+
+    buffer = io.BytesIO()
+    fig.savefig(buffer, format="png", bbox_inches="tight")
+    plt.close(fig)
+    return buffer.getvalue()

@@ -1,0 +1,191 @@
+"""Figures and the HTML report: the drawn data equal the results; files are real images."""
+
+import base64
+import html.parser
+import pathlib
+import re
+import shutil
+import subprocess
+import xml.etree.ElementTree as ET
+
+import numpy as np
+import pytest
+
+from cycle import api, cli, plots
+from cycle.report_html import build_report
+
+ROOT = pathlib.Path(__file__).resolve().parents[1]
+DEMOS = sorted((ROOT / "scenarios").glob("*.yaml"))
+
+
+@pytest.fixture(scope="module")
+def results():
+    return {path.stem: api.run(path) for path in DEMOS}
+
+
+def assert_real_png(path, min_std=0.02):
+    import matplotlib.image
+
+    pixels = matplotlib.image.imread(path)
+    assert pixels.ndim == 3 and pixels.shape[0] > 200 and pixels.shape[1] > 300
+    assert pixels[..., :3].std() > min_std  # not blank
+
+
+@pytest.mark.parametrize("name", [p.stem for p in DEMOS])
+def test_ts_points_are_the_state_table(results, name):
+    result = results[name]
+    data = plots.ts_data(result)
+    assert data.points == [(st.number, st.state.s, st.state.T) for st in result.states]
+    by_name = {st.name: st.state for st in result.states}
+    for kind, label, s, T in data.paths:
+        a, b = (by_name[part] for part in label.split(" -> "))
+        assert (s[0], T[0]) == pytest.approx((a.s, a.T), rel=1e-6)
+        assert (s[-1], T[-1]) == pytest.approx((b.s, b.T), rel=1e-6)
+    kinds = {kind for kind, *_ in data.paths}
+    assert {"compression", "isobar", "isenthalp", "split", "mixing"} <= kinds
+    # Every numbered state is joined to the drawing by at least one path.
+    joined = {part for _, label, _, _ in data.paths for part in label.split(" -> ")}
+    assert joined == set(by_name)
+
+
+def test_throttle_path_keeps_enthalpy_and_falls_into_the_dome(results):
+    from properties import get_fluid
+
+    result = results["nitrogen-bench"]
+    data = plots.ts_data(result)
+    (kind, label, s, T), = [p for p in data.paths if p[0] == "isenthalp"]
+    fluid = get_fluid("nitrogen")
+    inlet = {st.name: st.state for st in result.states}["recuperator high-pressure outlet, valve inlet"]
+    end = fluid.state_ph(result.scenario.low_pressure, inlet.h)
+    assert (s[-1], T[-1]) == pytest.approx((end.s, end.T))
+    assert np.all(np.diff(s) > 0)  # entropy rises along the throttle
+
+
+@pytest.mark.parametrize("name", [p.stem for p in DEMOS])
+def test_every_figure_for_every_demo_is_a_real_image(results, name, tmp_path):
+    paths = plots.write_figures(results[name], tmp_path)
+    assert sorted(p.name for p in paths) == sorted(f"{f}.{ext}" for f in plots.FIGURES for ext in ("png", "svg"))
+    for path in paths:
+        if path.suffix == ".png":
+            assert_real_png(path)
+        else:
+            root = ET.parse(path).getroot()
+            assert root.tag.endswith("svg") and len(list(root.iter())) > 50
+
+
+def test_profile_and_loss_data(results):
+    result = results["hydrogen-ln2-precooled"]
+    data = plots.profile_data(result)
+    assert set(data) == {"warm_recuperator", "cold_recuperator"}
+    for name, d in data.items():
+        rec = result.recuperators[name]
+        assert d["pinch"][3] == rec.min_approach and d["pinch"][1] - d["pinch"][2] == pytest.approx(rec.min_approach)
+        assert d["duty"][-1] == pytest.approx(result.compressor_flow * rec.duty / 1e3)
+    losses = plots.loss_data(result)
+    label, start, height, share = losses["bars"][-1]
+    assert start + height == pytest.approx(losses["actual"], rel=1e-8)
+    assert sum(b[3] for b in losses["bars"]) == pytest.approx(100.0, rel=1e-8)
+    heights = [b[2] for b in losses["bars"][1:]]
+    assert heights == sorted(heights, reverse=True)
+
+
+SWEEP = {"gas": "nitrogen", "low_pressure": "1.05 bar", "high_pressure": "200 bar",
+         "compressor": {"isothermal_efficiency": 0.6}, "recuperator": {"effectiveness": 0.97, "zones": 10},
+         "sweep": {"high_pressure": {"from": "60 bar", "to": "260 bar", "steps": 5}, "gas": ["nitrogen", "argon", "neon"]}}
+
+
+def test_sweep_chart_draws_the_results(tmp_path, capsys):
+    from cycle.sweep import run_sweep
+    import pandas as pd
+
+    out = tmp_path / "r.csv"
+    run_sweep(SWEEP, out, workers=1)
+    frame = pd.read_csv(out, keep_default_na=False, na_values=[""])
+    fig, data = plots.sweep_chart(frame, "high_pressure", "liquid_yield", "gas")
+    assert data["x_label"] == "high pressure [bar]" and data["y_label"] == "liquid yield [-]"
+    lines = {value: (xs, ys) for value, xs, ys in data["lines"]}
+    ok = frame[(frame.gas == "argon") & (frame.status == "ok")].sort_values("high_pressure")
+    assert lines["argon"][0] == pytest.approx(ok.high_pressure.to_numpy() / 1e5, rel=1e-12)  # Pa shown in bar
+    assert np.array_equal(lines["argon"][1], ok.liquid_yield.to_numpy())
+    misses = {value: xs for value, xs, _ in data["misses"]}
+    assert len(misses["neon"]) == 5 and len(lines["neon"][0]) == 0  # neon: no liquid without precooling
+    assert plots.axis_label("work_kJ_per_kg_liquid")[0] == "work [kJ/kg of liquid]"
+    assert plots.axis_label("recuperator.ua")[0] == "recuperator: ua [W/K]"
+    assert cli.main(["plot", str(out), "--x", "high_pressure", "--y", "figure_of_merit", "--by", "gas"]) == 0
+    for ext in ("png", "svg"):
+        made = tmp_path / f"r-figure_of_merit-vs-high_pressure-by-gas.{ext}"
+        assert made.exists()
+    assert_real_png(tmp_path / "r-figure_of_merit-vs-high_pressure-by-gas.png")
+    capsys.readouterr()
+    assert cli.main(["plot", str(out), "--x", "high_pressure", "--y", "nonsense"]) == 2
+    err = capsys.readouterr().err
+    assert "column nonsense is not in the results" in err and err.count("\n") == 1
+    assert cli.main(["plot", str(out), "--x", "high_pressure", "--y", "liquid_yield", "--out", str(tmp_path / "a.svg")]) == 0
+    ET.parse(tmp_path / "a.svg")
+
+
+def test_run_plots_option(tmp_path, capsys):
+    assert cli.main(["run", "scenarios/air-dual-pressure.yaml", "--plots", str(tmp_path / "figs")]) == 0
+    assert len(list((tmp_path / "figs").iterdir())) == 6
+
+
+class _Collector(html.parser.HTMLParser):
+    def __init__(self):
+        super().__init__()
+        self.tags, self.text, self.sources = [], [], []
+
+    def handle_starttag(self, tag, attrs):
+        self.tags.append(tag)
+        self.sources += [value for key, value in attrs if key in ("src", "href")]
+
+    def handle_data(self, data):
+        self.text.append(data)
+
+
+def test_report_is_self_contained_html_with_the_numbers(results, tmp_path):
+    import datetime
+
+    path = ROOT / "scenarios" / "nitrogen-bench.yaml"
+    page = build_report(results["nitrogen-bench"], path.read_text(), when=datetime.date(2026, 12, 1))
+    parser = _Collector()
+    parser.feed(page)
+    text = " ".join(parser.text)
+    summary = results["nitrogen-bench"].summary()
+    for key in ("liquid_yield", "figure_of_merit", "compressor_power_kW", "liquid_rate_L_per_h"):
+        assert key in text and f"{summary[key]:.6g}" in text
+    assert parser.tags.count("img") == 3 and parser.tags.count("table") >= 3
+    assert all(src.startswith("data:image/png;base64,") for src in parser.sources)  # no network
+    assert "2026-12-01" in text and "lhsim 0.1.0" in text
+    for word in ("high pressure", "cryogenic", "oxygen deficiency", "oxygen enrichment", "flammable", "local codes"):
+        assert word in text
+    assert "Barron" in text and "ideal work of liquefaction" in text
+    assert "name: Bench nitrogen liquefier, 10 L/h" in text  # the scenario as given
+    png = base64.b64decode(parser.sources[0].split(",", 1)[1])
+    assert png[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_report_command(tmp_path, capsys):
+    out = tmp_path / "r.html"
+    assert cli.main(["report", "scenarios/hydrogen-ln2-precooled.yaml", "--out", str(out)]) == 0
+    assert out.stat().st_size > 50_000
+    assert cli.main(["report", "scenarios/hydrogen-ln2-precooled.yaml", "--out", str(tmp_path / "r.txt")]) == 2
+
+
+CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
+
+
+@pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium not installed (.ci/run installs it)")
+def test_report_renders_in_a_real_browser(tmp_path):
+    out = tmp_path / "r.html"
+    assert cli.main(["report", "scenarios/nitrogen-bench.yaml", "--out", str(out)]) == 0
+    shot = tmp_path / "shot.png"
+    subprocess.run([CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+                    "--disable-background-networking", "--disable-component-update", "--disable-sync",
+                    f"--user-data-dir={tmp_path / 'profile'}", "--window-size=1200,1800",
+                    f"--screenshot={shot}", out.as_uri()], capture_output=True, timeout=120)
+    assert_real_png(shot, min_std=0.05)
+    import matplotlib.image
+
+    pixels = matplotlib.image.imread(shot)[..., :3]
+    # The T-s diagram and the tables put many non-white pixels on the page.
+    assert (pixels.mean(axis=2) < 0.9).mean() > 0.02
