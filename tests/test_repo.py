@@ -25,3 +25,9 @@ def test_readme_carries_the_cautions():
     text = (ROOT / "README.md").read_text().lower()
     for word in ("high pressure", "cryogenic", "oxygen deficiency", "oxygen enrichment", "flammable", "local codes"):
         assert word in text
+
+
+def test_images_the_docs_show_exist():
+    for page in [ROOT / "README.md", *sorted((ROOT / "docs").glob("*.md"))]:
+        for target in re.findall(r"!\[[^\]]*\]\(([^)]+)\)", page.read_text()):
+            assert (page.parent / target).exists(), f"{page.name} shows missing {target}"
