@@ -73,6 +73,7 @@ class Fluid:
         self._has_melting_line = st.has_melting_line()
         self._max_inversion = None
         self._sat_cache = {}
+        self._marcher = None
 
     def __repr__(self):
         return f"Fluid({self.name!r})"
@@ -223,6 +224,11 @@ class Fluid:
     def states_ph(self, pressures, enthalpies, guesses=None):
         """Many (p, h) states in one call: the march along an exchanger side.
 
+        Each single-phase state is solved by Newton's method on (T, density) warm-started from
+        the one before; two-phase states come from the saturation bounds at their pressure;
+        whatever that does not settle goes to CoolProp's own flash (:mod:`properties.march`).
+        The answers are those of :meth:`state_ph` to within 1e-6 K.
+
         Parameters
         ----------
         pressures : float or array_like
@@ -230,8 +236,8 @@ class Fluid:
         enthalpies : array_like
             Specific enthalpy of each state [J/kg], in march order.
         guesses : array_like, optional
-            Temperature guesses [K] (for example the previous solve); a faster flash may use
-            them to warm-start, this one does not need them.
+            Temperature guesses [K] for each state (for example a previous solve of the same
+            stream), used instead of the neighbouring state to start Newton's method.
 
         Returns
         -------
@@ -239,7 +245,28 @@ class Fluid:
         """
         h = np.atleast_1d(np.asarray(enthalpies, dtype=float))
         p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
-        return [self.state_ph(float(pk), float(hk)) for pk, hk in zip(p, h)]
+        starts = None
+        if guesses is not None:
+            starts = []
+            for T, pk in zip(np.atleast_1d(guesses), p):
+                try:
+                    self._state.update(CP.PT_INPUTS, float(pk), float(T))
+                    starts.append((float(T), self._state.rhomolar()))
+                except ValueError:
+                    starts.append(None)
+        return self._march.march(p, h, starts)
+
+    @property
+    def _march(self):
+        if self._marcher is None:
+            from properties.march import PhMarch
+
+            self._marcher = PhMarch(self)
+        return self._marcher
+
+    @staticmethod
+    def _phase_name(index):
+        return _PHASES.get(index, "unknown")
 
     # -- Joule-Thomson effect ---------------------------------------------------------
 
