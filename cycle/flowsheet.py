@@ -134,9 +134,66 @@ class Section:
     T_floor: float
     calls: int = 0
 
+    def __post_init__(self):
+        self._profiles = {}
+
     def profile(self, duty):
-        self.calls += 1
-        return self.recuperator.profile(self.fluid, self.hot_in, self.colds_of(duty), duty)
+        """The march at ``duty`` (remembered: a root finder asks for the same duty again)."""
+        found = self._profiles.get(duty)
+        if found is None:
+            self.calls += 1
+            found = self.recuperator.profile(self.fluid, self.hot_in, self.colds_of(duty), duty)
+            if len(self._profiles) > 64:
+                self._profiles.clear()
+            self._profiles[duty] = found
+        return found
+
+    def duty_for_outlet(self, approach, Q_hi):
+        """Duty at which the cold streams leave ``approach`` [K] below the hot inlet temperature
+        (no march: only the end states).  The first guess of a minimum-approach solve; exact
+        where the pinch is at the warm end."""
+        fl, hot = self.fluid, self.hot_in
+        T_out = hot.T - approach
+
+        def gap(duty):
+            colds = self.colds_of(duty)
+            wanted = sum(f * (fl.state_tp(T_out, self.recuperator.cold_outlet_pressure(st.p)).h - st.h)
+                         for st, f in colds if f > 0 and T_out > st.T)
+            return duty - wanted
+
+        try:
+            return brentq(gap, 0.0, Q_hi, xtol=1e-6 * Q_hi)
+        except ValueError:
+            return 0.5 * Q_hi
+
+    def duty_from_ntu(self, ua, flow, Q_hi):
+        """Duty of a counterflow exchanger of conductance ``ua`` [W/K] at ``flow`` [kg/s] by the
+        effectiveness-NTU relation with mean heat capacities (a first guess for a UA solve).
+
+        References
+        ----------
+        W. M. Kays and A. L. London, *Compact Heat Exchangers*, 3rd ed., McGraw-Hill, 1984
+        (counterflow effectiveness-NTU relation).
+        """
+        import math as _m
+
+        fl, hot = self.fluid, self.hot_in
+        span = hot.T - self.T_floor
+        if not (_m.isfinite(flow) and flow > 0 and span > 0):
+            return 0.5 * Q_hi
+        colds = self.colds_of(0.5 * Q_hi)
+        C_cold = sum(f * (fl.state_tp(hot.T, self.recuperator.cold_outlet_pressure(st.p)).h - st.h)
+                     for st, f in colds if f > 0) / span
+        C_hot = self.recuperator.max_hot_duty(fl, hot, self.T_floor) / span
+        C_min, C_max = min(C_cold, C_hot), max(C_cold, C_hot)
+        ntu = ua / (flow * C_min)
+        r = C_min / C_max
+        if abs(1.0 - r) < 1e-9:
+            eps = ntu / (1.0 + ntu)
+        else:
+            e = _m.exp(-ntu * (1.0 - r))
+            eps = (1.0 - e) / (1.0 - r * e)
+        return min(max(eps * C_min * span, 1e-6 * Q_hi), Q_hi * (1 - 1e-6))
 
     def effectiveness(self, duty):
         return self.recuperator.effectiveness(self.fluid, self.hot_in, self.colds_of(duty), duty)
@@ -203,17 +260,21 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
         def residual(duty):
             return section.profile(duty).min_approach - target
 
-        f_hi = residual(Q_hi)
-        if f_hi > -1e-6:  # the streams touch at the largest duty: a zero approach lies there
+        if target <= 1e-9 and residual(Q_hi) > -1e-6:  # the streams touch at the largest duty
             duty = Q_hi
         else:
-            if residual(0.0) < 0:
+            if target >= section.hot_in.T - section.T_floor:
                 raise NoLiquefactionError(
                     f"no liquid: {key}.min_approach {target:g} K is more than the temperature difference "
                     f"between the high-pressure inlet ({section.hot_in.T:.2f} K) and the returning gas "
                     f"({section.T_floor:.2f} K)")
-            duty, root = brentq(residual, 0.0, Q_hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
-                                full_output=True, disp=False)
+            guess = section.duty_for_outlet(target, Q_hi)
+            lo, hi = _bracket(residual, guess, 0.0, Q_hi, decreasing=True)
+            if lo == hi:  # the first guess was the root (the pinch at the warm end)
+                duty = lo
+            else:
+                duty, root = brentq(residual, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
+                                    full_output=True, disp=False)
         res = residual(duty)
     else:
         target, unit = spec.ua, "W/K"
@@ -228,10 +289,27 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
         residual=float(res),
         residual_unit=unit,
         tolerance=float(tol),
-        message=root.flag if root is not None else "solution at the end of the bracket",
+        message=root.flag if root is not None else "the first guess or the bracket end is the root",
         tear_variable=f"{key} duty per kg of compressor flow [J/kg]",
     )
     return duty, profile, report
+
+
+def _bracket(f, guess, lo, hi, decreasing):
+    """A bracket [a, b] of a root of the monotone ``f`` between ``lo`` and ``hi``, searched
+    outwards from ``guess`` in steps that double (each evaluation is a march)."""
+    f0 = f(guess)
+    if f0 == 0.0:
+        return guess, guess
+    up = (f0 > 0) == decreasing  # the root lies above the guess
+    step = 0.01 * (hi - lo)
+    a = guess
+    while True:
+        b = min(hi, a + step) if up else max(lo, a - step)
+        fb = f(b)
+        if (fb > 0) != (f0 > 0) or b in (lo, hi):
+            return (a, b) if up else (b, a)
+        a, f0, step = b, fb, 2.0 * step
 
 
 def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
@@ -264,8 +342,11 @@ def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
                 f"{key}.ua {target:g} W/K is too small for this production: the least UA that makes it "
                 f"at these conditions is {found.fun:.4g} W/K (and it needs {flow_of(lo) * 3600:.4g} kg/h "
                 f"of compressor flow)")
-    if ua_abs(hi) < target:  # the streams never touch inside the bracket
-        hi = Q_hi
+    else:
+        guess = section.duty_from_ntu(target, flow_of(0.5 * Q_hi), Q_hi)
+        lo, hi = _bracket(lambda d: ua_abs(d) - target, guess, 0.0, Q_hi, decreasing=False)
+        if lo == hi:
+            return lo, None
     return brentq(lambda d: ua_abs(d) - target, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
                   full_output=True, disp=False)
 

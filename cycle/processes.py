@@ -202,10 +202,8 @@ def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out,
     h_cold = cold_in.h + q / cold_flow
     p_hot = hot_p_out + frac * (hot_in.p - hot_p_out)
     p_cold = cold_in.p + frac * (cold_p_out - cold_in.p)
-    hot = fluid.states_ph(p_hot[:-1], h_hot[:-1])
-    cold = fluid.states_ph(p_cold[1:], h_cold[1:])
-    hot_T = np.array([st.T for st in hot] + [hot_in.T])
-    cold_T = np.array([cold_in.T] + [st.T for st in cold])
+    hot_T = np.append(fluid.temperatures_ph(p_hot[:-1], h_hot[:-1]), hot_in.T)
+    cold_T = np.insert(fluid.temperatures_ph(p_cold[1:], h_cold[1:]), 0, cold_in.T)
     return ExchangerProfile(q, hot_T, cold_T, p_hot, p_cold)
 
 
@@ -283,8 +281,7 @@ def composite_profile(fluid, hot_in, hot_p_out, hot_flow, colds, duty, zones):
     q = duty * frac
     h_hot = (hot_in.h - duty / hot_flow) + q / hot_flow
     p_hot = hot_p_out + frac * (hot_in.p - hot_p_out)
-    hot = fluid.states_ph(p_hot[:-1], h_hot[:-1])
-    hot_T = np.array([st.T for st in hot] + [hot_in.T])
+    hot_T = np.append(fluid.temperatures_ph(p_hot[:-1], h_hot[:-1]), hot_in.T)
     cold_T = np.empty(zones + 1)
     cold_T[0], cold_T[-1] = T_low, T_out
     for k in range(1, zones):

@@ -256,6 +256,13 @@ class Fluid:
                     starts.append(None)
         return self._march.march(p, h, starts)
 
+    def temperatures_ph(self, pressures, enthalpies):
+        """Temperatures [K] of many (p, h) states along one stream: :meth:`states_ph` without
+        building the state objects (the exchanger march needs temperatures only)."""
+        h = np.atleast_1d(np.asarray(enthalpies, dtype=float))
+        p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
+        return np.array(self._march.march(p, h, full=False))
+
     @property
     def _march(self):
         if self._marcher is None:

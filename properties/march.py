@@ -58,39 +58,46 @@ class PhMarch:
             self._bounds[p] = cached
         return cached
 
-    def solve(self, p, h, guess=None):
-        """The state at (p, h); ``guess`` is (T [K], molar density [mol/m3]) of a nearby state."""
+    def solve(self, p, h, guess=None, full=True):
+        """The state at (p, h); ``guess`` is (T [K], molar density [mol/m3]) of a nearby state.
+
+        With ``full=False`` only ``(T, molar density or None, quality or None)`` is returned,
+        which saves building a :class:`State` where the march needs temperatures alone."""
         fl = self.fluid
         if not (0.0 < p <= fl.p_max) or abs(p / fl.p_critical - 1.0) < 1e-9 or h != h:
             fl._check_ph_pressure(p, f"p = {p / 1e5:.6g} bar, h = {h / 1e3:.6g} kJ/kg")  # raises
-            return self._flash(p, h)
+            return self._flash(p, h, full)
         sat = self.bounds(p)
         side = None
         if sat is not None:
             T_b, T_d, h_l, h_v, s_l, s_v, D_l, D_v = sat
             if h_l <= h <= h_v:
                 if abs(T_d - T_b) > 1e-9 * T_b:  # pseudo-pure: the two-phase band is not isothermal
-                    return self._flash(p, h)
+                    return self._flash(p, h, full)
                 q = (h - h_l) / (h_v - h_l)
-                rho = 1.0 / ((1.0 - q) / (D_l * self.M) + q / (D_v * self.M))
                 self.newton_states += 1
+                if not full:
+                    return T_b, None, q
+                rho = 1.0 / ((1.0 - q) / (D_l * self.M) + q / (D_v * self.M))
                 return State(fl.name, T_b, float(p), float(h), s_l + q * (s_v - s_l), rho, float(q), "two-phase")
             side = "liquid" if h < h_l else "vapour"
             if guess is None or (side == "liquid" and guess[0] >= T_b) or (side == "vapour" and guess[0] <= T_d):
                 guess = (T_b * (1 - 1e-4), D_l) if side == "liquid" else (T_d * (1 + 1e-4), D_v)
         if guess is None:
-            return self._flash(p, h)
+            return self._flash(p, h, full)
         found = self._newton(p, h, guess[0], guess[1])
         if found is None:
-            return self._flash(p, h)
+            return self._flash(p, h, full)
         T, D = found
         if sat is not None:
             if (side == "liquid" and T > sat[0]) or (side == "vapour" and T < sat[1]):
-                return self._flash(p, h)
+                return self._flash(p, h, full)
         if not fl.T_min <= T <= fl.T_max or (T < 2.0 * fl.T_triple and self._below_melting(T, p)):
-            return self._flash(p, h)
+            return self._flash(p, h, full)
         st = self.state
         self.newton_states += 1
+        if not full:
+            return T, D, None
         return State(fl.name, T, float(p), float(h), st.smass(), st.rhomass(), None,
                      fl._phase_name(st.phase()))
 
@@ -128,33 +135,35 @@ class PhMarch:
             D += scale * dD
         return None
 
-    def _flash(self, p, h):
+    def _flash(self, p, h, full=True):
         self.flash_states += 1
-        return self.fluid.state_ph(p, h)
+        st = self.fluid.state_ph(p, h)
+        return st if full else (st.T, st.density / self.M if st.quality is None else None, st.quality)
 
-    def _slopes(self):
-        """(dT/dh, dD/dh at constant p; dT/dp, dD/dp at constant h) of the current state."""
-        st = self.state
-        return (st.first_partial_deriv(CP.iT, CP.iHmass, CP.iP), st.first_partial_deriv(CP.iDmolar, CP.iHmass, CP.iP),
-                st.first_partial_deriv(CP.iT, CP.iP, CP.iHmass), st.first_partial_deriv(CP.iDmolar, CP.iP, CP.iHmass))
-
-    def march(self, pressures, enthalpies, guesses=None):
-        """Solve states in order, each started from a first-order step off the one before (or
-        from ``guesses``)."""
+    def march(self, pressures, enthalpies, guesses=None, full=True):
+        """Solve states in order, each started from a straight-line extrapolation of the two
+        before (or from ``guesses``).  ``full=False`` returns temperatures [K] only."""
         out = []
-        prev = None  # (p, h, T, D, slopes) of the last single-phase state
+        last = []  # up to two (h, T, D) of the latest single-phase states, newest last
         for k, (p, h) in enumerate(zip(pressures, enthalpies)):
             p, h = float(p), float(h)
             guess = None
             if guesses is not None and guesses[k] is not None:
                 guess = guesses[k]
-            elif prev is not None:
-                p0, h0, T0, D0, (dTdh, dDdh, dTdp, dDdp) = prev
-                guess = (T0 + dTdh * (h - h0) + dTdp * (p - p0), D0 + dDdh * (h - h0) + dDdp * (p - p0))
+            elif len(last) == 2 and last[1][0] != last[0][0]:
+                (h0, T0, D0), (h1, T1, D1) = last
+                w = (h - h1) / (h1 - h0)
+                guess = (T1 + w * (T1 - T0), D1 + w * (D1 - D0))
                 if not (guess[0] > 0 and guess[1] > 0):
-                    guess = (T0, D0)
-            st = self.solve(p, h, guess)
-            out.append(st)
-            # After a single-phase solve (Newton or flash) the AbstractState holds that state.
-            prev = (p, h, st.T, st.density / self.M, self._slopes()) if st.quality is None else None
+                    guess = (T1, D1)
+            elif last:
+                guess = last[-1][1:]
+            solved = self.solve(p, h, guess, full)
+            if full:
+                out.append(solved)
+                T, D, q = solved.T, solved.density / self.M, solved.quality
+            else:
+                T, D, q = solved
+                out.append(T)
+            last = (last + [(h, T, D)])[-2:] if q is None else []
         return out

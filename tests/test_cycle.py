@@ -168,7 +168,7 @@ def test_min_approach_mode_hits_its_target_and_costs_yield():
     for dT in (1.0, 3.0, 6.0):
         result = solve_scenario(simple(recuperator={"min_approach": f"{dT} K", "zones": 40}))
         assert result.recuperator.min_approach == pytest.approx(dT, abs=1e-6)
-        assert result.solve.converged and result.solve.iterations > 0
+        assert result.solve.converged and result.solve.function_calls >= 1
         yields.append(result.liquid_yield)
     assert yields[0] > yields[1] > yields[2] > 0
 
@@ -256,7 +256,7 @@ def test_solve_report_is_data():
     report = result.solve.to_dict()
     assert report["converged"] is True
     assert report["residual_unit"] == "K" and abs(report["residual"]) < 1e-6
-    assert report["function_calls"] >= report["iterations"] > 0
+    assert report["function_calls"] >= 1 and report["iterations"] >= 0
 
 
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])

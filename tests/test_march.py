@@ -116,3 +116,10 @@ def test_guesses_are_used_and_do_not_change_answers():
     first = n2.states_ph(p, h)
     again = n2.states_ph(p, h, guesses=[s.T for s in first])
     assert [s.T for s in again] == pytest.approx([s.T for s in first], abs=1e-7)
+
+
+def test_temperatures_alone_equal_the_states():
+    ar = fresh("argon")
+    p = np.linspace(40e5, 39e5, 50)
+    h = np.linspace(ar.saturated_liquid(39e5).h - 3e4, ar.state_tp(300.0, 40e5).h, 50)
+    assert ar.temperatures_ph(p, h) == pytest.approx([s.T for s in ar.states_ph(p, h)], abs=1e-9)

@@ -1,0 +1,250 @@
+"""Cost of one design point in HEOS (p, h) flash equivalents, and how it grows.
+
+A script, not a test (pytest does not collect it).  Run from the repository root:
+
+    python tests/benchmarks/bench_point.py [--write docs/performance.md] [--quick]
+
+Measures, in one run on this machine:
+
+1. the time of one bare CoolProp HEOS (p, h) flash (low-level AbstractState) on the states of
+   the benchmark point's recuperator;
+2. one converged 50-zone point with the recuperator sized by UA, divided by (1): the cost in
+   flash equivalents (goal: 50 or less);
+3. the same point by a straightforward script written here: PropsSI for every state and
+   bisection on the recuperator duty (goal: lhsim at least 30 times faster, yields within 0.1 %);
+4. growth with zones (25, 50, 100, 200; goal: 200 zones within 4.5 times the 50-zone cost) and with
+   sweep size (10, 100, 1000 points, serial; linear);
+5. where the time of a point goes: property calls (counted, times unit costs measured here) and
+   the rest (Python).
+"""
+
+import argparse
+import datetime
+import pathlib
+import platform
+import statistics
+import sys
+import tempfile
+import time
+
+ROOT = pathlib.Path(__file__).resolve().parents[2]
+sys.path.insert(0, str(ROOT))
+
+import numpy as np  # noqa: E402
+import CoolProp  # noqa: E402
+from CoolProp import CoolProp as CP  # noqa: E402
+
+from cycle.flowsheet import build_flowsheet  # noqa: E402
+from cycle.scenario import parse_scenario  # noqa: E402
+from properties import get_fluid  # noqa: E402
+
+POINT = {
+    "gas": "nitrogen", "ambient_temperature": 300.0, "low_pressure": 1.05e5, "high_pressure": 200e5,
+    "compressor": {"isothermal_efficiency": 0.6},
+    "recuperator": {"ua": 400.0, "zones": 50},
+    "production": {"compressor_flow": 150 / 3600},
+}
+
+
+def timed(func, repeat):
+    times = []
+    for _ in range(repeat):
+        start = time.perf_counter()
+        value = func()
+        times.append(time.perf_counter() - start)
+    return statistics.median(times), value
+
+
+def flash_time(result):
+    """Median time of one HEOS HmassP flash over the point's recuperator states."""
+    prof = result.recuperator.profile
+    fluid = get_fluid(result.scenario.gas)
+    by = {s.name: s.state for s in result.states}
+    hot_out = by["recuperator high-pressure outlet, valve inlet"]
+    vapour = by["separator vapour, recuperator low-pressure inlet"]
+    y = result.liquid_yield
+    states = [(p, hot_out.h + q) for p, q in zip(prof.hot_p, prof.duty)]
+    states += [(p, vapour.h + q / (1 - y)) for p, q in zip(prof.cold_p[1:], prof.duty[1:])]
+    state = CoolProp.AbstractState("HEOS", fluid.name)
+
+    def run():
+        for p, h in states:
+            state.update(CP.HmassP_INPUTS, h, p)
+
+    t, _ = timed(run, 15)
+    return t / len(states)
+
+
+def unit_costs(fluid_name):
+    state = CoolProp.AbstractState("HEOS", fluid_name)
+    state.update(CP.PT_INPUTS, 1e5, 300.0)
+    D = state.rhomolar()
+    out = {}
+    for label, call in (
+        ("DmolarT update", lambda: state.update(CP.DmolarT_INPUTS, D, 300.0)),
+        ("PT update", lambda: state.update(CP.PT_INPUTS, 1e5, 300.0)),
+        ("PQ update", lambda: state.update(CP.PQ_INPUTS, 1e5, 1.0)),
+        ("partial derivative", lambda: state.first_partial_deriv(CP.iP, CP.iT, CP.iDmolar)),
+    ):
+        n = 2000
+        t, _ = timed(lambda: [call() for _ in range(n)], 5)
+        out[label] = t / n
+    return out
+
+
+class Counting:
+    """Stands in for an AbstractState and counts the calls made to it."""
+
+    def __init__(self, inner):
+        self._inner = inner
+        self.counts = {}
+
+    def update(self, pair, a, b):
+        name = {CP.DmolarT_INPUTS: "DmolarT update", CP.PT_INPUTS: "PT update", CP.PQ_INPUTS: "PQ update",
+                CP.HmassP_INPUTS: "HmassP flash", CP.PSmass_INPUTS: "PSmass flash"}.get(pair, "other update")
+        self.counts[name] = self.counts.get(name, 0) + 1
+        return self._inner.update(pair, a, b)
+
+    def first_partial_deriv(self, *args):
+        self.counts["partial derivative"] = self.counts.get("partial derivative", 0) + 1
+        return self._inner.first_partial_deriv(*args)
+
+    def __getattr__(self, name):
+        return getattr(self._inner, name)
+
+
+def solve_point(data):
+    return build_flowsheet(parse_scenario(data)).solve()
+
+
+def straightforward(data, tol=1e-7):
+    """The same point the plain way: PropsSI for every state, bisection on the duty."""
+    PropsSI = CP.PropsSI
+    fluid = "Nitrogen"
+    T0, p_low, p_high = data["ambient_temperature"], data["low_pressure"], data["high_pressure"]
+    m, ua_target, n = data["production"]["compressor_flow"], data["recuperator"]["ua"], data["recuperator"]["zones"]
+    h3 = PropsSI("H", "T", T0, "P", p_high, fluid)
+    hf = PropsSI("H", "P", p_low, "Q", 0, fluid)
+    hg = PropsSI("H", "P", p_low, "Q", 1, fluid)
+    Tg = PropsSI("T", "P", p_low, "Q", 1, fluid)
+    h_ret_max = PropsSI("H", "T", T0, "P", p_low, fluid)
+
+    def ua_of(Q):
+        y = (hg - (h3 - Q)) / (hg - hf)
+        ua = 0.0
+        prev = None
+        for k in range(n + 1):
+            q = Q * k / n
+            th = PropsSI("T", "P", p_high, "H", h3 - Q + q, fluid)
+            tc = PropsSI("T", "P", p_low, "H", hg + q / (1 - y), fluid)
+            dT = th - tc
+            if dT <= 0:
+                return float("inf"), y
+            if prev is not None:
+                a, b = prev, dT
+                lmtd = 0.5 * (a + b) if abs(a - b) < 1e-9 * a else (a - b) / np.log(a / b)
+                ua += (Q / n) / lmtd
+            prev = dT
+        return m * ua, y
+
+    lo = 0.0
+    hi = min(h3 - PropsSI("H", "T", Tg, "P", p_high, fluid), (h_ret_max - hg) * (1 - 0.0))
+    while hi - lo > tol * hi:
+        mid = 0.5 * (lo + hi)
+        if ua_of(mid)[0] < ua_target:
+            lo = mid
+        else:
+            hi = mid
+    return ua_of(0.5 * (lo + hi))[1]
+
+
+def main():
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--write", metavar="FILE")
+    parser.add_argument("--quick", action="store_true", help="fewer repeats and no 1000-point sweep")
+    args = parser.parse_args()
+    repeat = 3 if args.quick else 7
+    lines = []
+
+    def say(text=""):
+        print(text, flush=True)
+        lines.append(text)
+
+    solve_point(POINT)  # warm up: fluid objects, caches
+    t_point, result = timed(lambda: solve_point(POINT), repeat)
+    t_flash = flash_time(result)
+    cost = t_point / t_flash
+    say("| measure | value | goal | met |")
+    say("|---|---|---|---|")
+    say(f"| one HEOS (p, h) flash (median over the point's recuperator states) | {t_flash * 1e6:.1f} us | | |")
+    say(f"| one converged 50-zone UA point | {t_point * 1e3:.2f} ms | | |")
+    say(f"| point cost in flash equivalents | {cost:.0f} | <= 50 | {'yes' if cost <= 50 else 'no'} |")
+    say(f"| recuperator marches (profile evaluations) per point | {result.solve.function_calls} | | |")
+
+    t_plain, y_plain = timed(lambda: straightforward(POINT), 1)
+    ratio = t_plain / t_point
+    dy = abs(y_plain / result.liquid_yield - 1)
+    say(f"| straightforward PropsSI + bisection script | {t_plain:.2f} s | | |")
+    say(f"| ... slower than lhsim by | {ratio:.0f} x | >= 30 x | {'yes' if ratio >= 30 else 'no'} |")
+    say(f"| ... yield difference | {100 * dy:.4f} % | <= 0.1 % | {'yes' if dy <= 1e-3 else 'no'} |")
+
+    zone_times = {}
+    for zones in (25, 50, 100, 200):
+        data = dict(POINT, recuperator=dict(POINT["recuperator"], zones=zones))
+        solve_point(data)
+        zone_times[zones], _ = timed(lambda: solve_point(data), repeat)
+    growth = zone_times[200] / zone_times[50]
+    for zones, t in zone_times.items():
+        say(f"| {zones} zones | {t * 1e3:.2f} ms ({t / zone_times[50]:.2f} x the 50-zone point) | | |")
+    say(f"| 200 zones over 50 zones | {growth:.2f} x | <= 4.5 x | {'yes' if growth <= 4.5 else 'no'} |")
+
+    from cycle.sweep import run_sweep
+
+    sizes = (10, 100) if args.quick else (10, 100, 1000)
+    per_point = {}
+    with tempfile.TemporaryDirectory() as tmp:
+        for size in sizes:
+            data = dict(POINT, sweep={"recuperator.ua": {"from": 300.0, "to": 600.0, "steps": size}})
+            start = time.perf_counter()
+            run_sweep(data, pathlib.Path(tmp) / f"{size}.csv", workers=1, progress=False)
+            per_point[size] = (time.perf_counter() - start) / size
+    for size, t in per_point.items():
+        say(f"| {size}-point sweep, serial | {t * 1e3:.2f} ms per point | linear | |")
+
+    fluid = get_fluid("nitrogen")
+    counting = Counting(fluid._state)
+    fluid._state = counting
+    fluid._marcher = None
+    try:
+        solve_point(POINT)
+    finally:
+        fluid._state = counting._inner
+        fluid._marcher = None
+    costs = unit_costs("Nitrogen")
+    costs["HmassP flash"] = t_flash
+    costs["PSmass flash"] = t_flash
+    spent = sum(costs.get(name, 0.0) * n for name, n in counting.counts.items())
+    say()
+    say("Where one point's time goes (calls counted in one solve, times unit costs measured above):")
+    say()
+    say("| property call | calls | unit cost | time |")
+    say("|---|---|---|---|")
+    for name, n in sorted(counting.counts.items(), key=lambda kv: -kv[1]):
+        unit = costs.get(name, 0.0)
+        say(f"| {name} | {n} | {unit * 1e6:.2f} us | {unit * n * 1e3:.2f} ms |")
+    say(f"| all property calls | | | {spent * 1e3:.2f} ms ({100 * spent / t_point:.0f} % of the point) |")
+    say(f"| the rest (Python: loops, State objects, root finding) | | | {(t_point - spent) * 1e3:.2f} ms "
+        f"({100 * (t_point - spent) / t_point:.0f} %) |")
+
+    if args.write:
+        head = (f"# Performance\n\nMeasured by `python tests/benchmarks/bench_point.py --write {args.write}` on "
+                f"{datetime.date.today().isoformat()}: Python {platform.python_version()}, CoolProp "
+                f"{CoolProp.__version__}, {platform.machine()}, 2 cores. The point: nitrogen 1.05 -> 200 bar, "
+                f"isothermal compressor, recuperator sized by UA = 400 W/K over 50 zones, 150 kg/h compressor "
+                f"flow. Times are medians of repeated runs; compare them as ratios.\n\n")
+        pathlib.Path(args.write).write_text(head + "\n".join(lines) + "\n")
+        print(f"wrote {args.write}")
+
+
+if __name__ == "__main__":
+    main()
