@@ -330,24 +330,46 @@ def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
         ua = section.profile(duty).ua()
         return m * ua if math.isfinite(ua) else stand_in
 
-    lo, hi = 0.0, Q_hi
+    def excess(duty):
+        return ua_abs(duty) - target
+
     if flow_of(0.0) != flow_of(Q_hi):
         # The flow is m_liq / y: UA(Q) falls, then rises as the streams close in.  The design
-        # point is on the rising branch (least compressor flow).
-        found = minimize_scalar(ua_abs, bounds=(lowest_duty + 1e-9 * Q_hi, Q_hi), method="bounded",
-                                options={"xatol": 1e-6 * Q_hi})
-        lo = found.x
-        if found.fun > target:
-            raise NoLiquefactionError(
-                f"{key}.ua {target:g} W/K is too small for this production: the least UA that makes it "
-                f"at these conditions is {found.fun:.4g} W/K (and it needs {flow_of(lo) * 3600:.4g} kg/h "
-                f"of compressor flow)")
+        # point is on the rising branch (least compressor flow): the first root above any duty
+        # whose UA is below the target.  The effectiveness-NTU guess usually is one; otherwise
+        # the least-UA duty is searched, and if even that UA is too large, no design exists.
+        try:  # start where the exchanger would reach an effectiveness of 0.97 (no march needed)
+            guess = brentq(lambda d: section.effectiveness(d) - 0.97, lowest_duty, Q_hi, xtol=1e-6 * Q_hi)
+        except ValueError:
+            guess = 0.5 * (lowest_duty + Q_hi)
+        m = flow_of(guess)
+        for _ in range(3):
+            if not math.isfinite(m):
+                break
+            guess = section.duty_from_ntu(target, m, Q_hi)
+            m = flow_of(guess)
+        def too_small():
+            found = minimize_scalar(ua_abs, bounds=(lowest_duty + 1e-9 * Q_hi, Q_hi), method="bounded",
+                                    options={"xatol": 1e-4 * Q_hi})
+            if found.fun > target:
+                raise NoLiquefactionError(
+                    f"{key}.ua {target:g} W/K is too small for this production: the least UA that makes it "
+                    f"at these conditions is about {found.fun:.4g} W/K (and it needs "
+                    f"{flow_of(found.x) * 3600:.4g} kg/h of compressor flow)")
+            return found.x
+
+        f0 = excess(guess)
+        if f0 >= 0 and not excess(guess * (1 - 1e-3)) < f0:
+            guess = too_small()  # not on the rising branch: find a duty below the target first
+        lo, hi = _bracket(excess, guess, lowest_duty, Q_hi, decreasing=False)
+        if lo != hi and (excess(lo) > 0) == (excess(hi) > 0):  # walked past the least UA
+            lo, hi = _bracket(excess, too_small(), lowest_duty, Q_hi, decreasing=False)
     else:
         guess = section.duty_from_ntu(target, flow_of(0.5 * Q_hi), Q_hi)
-        lo, hi = _bracket(lambda d: ua_abs(d) - target, guess, 0.0, Q_hi, decreasing=False)
-        if lo == hi:
-            return lo, None
-    return brentq(lambda d: ua_abs(d) - target, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
+        lo, hi = _bracket(excess, guess, 0.0, Q_hi, decreasing=False)
+    if lo == hi:
+        return lo, None
+    return brentq(excess, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
                   full_output=True, disp=False)
 
 

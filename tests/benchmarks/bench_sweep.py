@@ -28,17 +28,17 @@ SCENARIO = {
     "gas": "nitrogen", "ambient_temperature": "300 K", "low_pressure": "1.05 bar", "high_pressure": "200 bar",
     "compressor": {"stages": 3, "isentropic_efficiency": 0.75},
     "aftercooler": {"outlet_temperature": "305 K", "pressure_drop": "0.3 bar"},
-    "recuperator": {"ua": "400 W/K", "zones": 50, "high_side_pressure_drop": "0.5 bar",
+    "recuperator": {"ua": "400 W/K", "zones": 100, "high_side_pressure_drop": "0.5 bar",
                     "low_side_pressure_drop": "0.04 bar"},
-    "heat_leak": "5 W", "production": {"compressor_flow": "150 kg/h"},
+    "heat_leak": "5 W", "production": {"liquid_rate": "10 L/h"},
 }
 
 
 def bench(points, write):
     steps_p = 20
     steps_ua = points // steps_p
-    data = dict(SCENARIO, sweep={"high_pressure": {"from": "80 bar", "to": "300 bar", "steps": steps_p},
-                                 "recuperator.ua": {"from": "250 W/K", "to": "700 W/K", "steps": steps_ua}})
+    data = dict(SCENARIO, sweep={"high_pressure": {"from": "120 bar", "to": "300 bar", "steps": steps_p},
+                                 "recuperator.ua": {"from": "450 W/K", "to": "900 W/K", "steps": steps_ua}})
     n = steps_p * steps_ua
     timings = {}
     with tempfile.TemporaryDirectory() as tmp:
@@ -68,8 +68,8 @@ def bench(points, write):
         stamp = datetime.date.today().isoformat()
         body = (f"# Sweep throughput\n\nMeasured by `python tests/benchmarks/bench_sweep.py --write {write}` on "
                 f"{stamp}: {os.cpu_count()} CPUs, Python {platform.python_version()}, {platform.machine()}. "
-                f"The sweep: {n} points of a nitrogen liquefier with a UA-sized 50-zone recuperator (high "
-                f"pressure x UA grid). Times include starting the worker processes or the Dask cluster.\n\n"
+                f"The sweep: {n} points of a nitrogen liquefier for 10 L/h with a UA-sized 100-zone recuperator "
+                f"(high pressure x UA grid). Times include starting the worker processes or the Dask cluster.\n\n"
                 f"{text}\n\nThe three results files are byte-identical: {same}. Goal: two local workers give at "
                 f"least 1.8 times the serial throughput: **{verdict}**.\n")
         pathlib.Path(write).write_text(body)
