@@ -262,6 +262,18 @@ def _cmd_plot(args):
     return 0
 
 
+def _emit(args, data, formatter_name):
+    """Print ``data`` as JSON (``--json``) or as text by ``cycle.report.<formatter_name>``."""
+    if args.json:
+        print(json.dumps(_json_safe(data), indent=2))
+    else:
+        from cycle import report
+
+        print(getattr(report, formatter_name)(data))
+        print(SHORT_CAUTION)
+    return 0
+
+
 def _read(path):
     from cycle.scenario import read_mapping
 
@@ -303,14 +315,7 @@ def _cmd_compare(args):
                        between=tuple(args.between) if args.between else None)
     except ScenarioError as err:
         return _fail(str(err))
-    if args.json:
-        print(json.dumps(_json_safe(rows), indent=2))
-    else:
-        from cycle.report import format_comparison
-
-        print(format_comparison(rows))
-        print(SHORT_CAUTION)
-    return 0
+    return _emit(args, rows, "format_comparison")
 
 
 def _cmd_optimize(args):
@@ -328,14 +333,7 @@ def _cmd_optimize(args):
         return _fail(str(err))
     except NoLiquefactionError as err:
         return _fail(str(err), EXIT_NO_LIQUID)
-    if args.json:
-        print(json.dumps(_json_safe(found), indent=2))
-    else:
-        from cycle.report import format_optimum
-
-        print(format_optimum(found))
-        print(SHORT_CAUTION)
-    return 0
+    return _emit(args, found, "format_optimum")
 
 
 def _cmd_gas(args):
@@ -359,14 +357,7 @@ def _cmd_gas(args):
         info = gas_properties(fluid, T, p)
     except PropertyRangeError as err:
         return _fail(str(err))
-    if args.json:
-        print(json.dumps(_json_safe(info), indent=2))
-    else:
-        from cycle.report import format_gas
-
-        print(format_gas(info))
-        print(SHORT_CAUTION)
-    return 0
+    return _emit(args, info, "format_gas")
 
 
 def gas_properties(fluid, T, p):

@@ -591,6 +591,25 @@ class Liquefier:
             exergy_losses=losses, precooling_work_per_kg_compressed=precooling_work,
             precooler_duty=precooler_duty, coolant_per_kg_compressed=coolant, warnings=warn)
 
+    def _warm_end(self, ret, y):
+        """Make-up mixing, compression and aftercooling of the return gas ``ret`` (flow 1 - y).
+
+        Returns (make-up state, compression result, aftercooler outlet, aftercooler duty, the
+        numbered streams so far, and the exergy losses of compressor and mixing).
+        """
+        fl = self.fluid
+        makeup = self.mixer.makeup_state(fl)
+        suction = self.mixer.run(fl, ret, 1.0 - y, y)
+        comp = self.compressor.run(fl, suction, self.scenario.high_pressure)
+        hp_in, after_duty = self.aftercooler.run(fl, comp.outlet)
+        streams = [("compressor suction", suction, 1.0)] + [(label, st, 1.0) for label, st in comp.states]
+        losses = {
+            "compressor": self._exergy_loss([(suction, 1.0)], [(hp_in, 1.0)],
+                                            [(-(comp.heat_rejected + after_duty), self.T0)]),
+            "makeup_mixing": self._exergy_loss([(ret, 1.0 - y), (makeup, y)], [(suction, 1.0)]),
+        }
+        return makeup, comp, hp_in, after_duty, streams, losses
+
     def _cold_end_losses(self, y, q_leak, valve_in, valve_out, feed, liquid, vapour, valve="throttle_valve"):
         """Exergy destroyed in the last valve, the separator and by the heat leak [J/kg compressed].
 
@@ -642,13 +661,7 @@ class SimpleLindeHampson(Liquefier):
         hp_out = fl.state_ph(rec.hot_outlet_pressure(hot_in.p), hot_in.h - duty)
         valve_out = self.valve.run(fl, hp_out)
         ret = fl.state_ph(rec.cold_outlet_pressure(vapour.p), vapour.h + duty / (1.0 - y))
-        makeup = self.mixer.makeup_state(fl)
-        suction = self.mixer.run(fl, ret, 1.0 - y, y)
-        comp = self.compressor.run(fl, suction, sc.high_pressure)
-        hp_in, after_duty = self.aftercooler.run(fl, comp.outlet)
-
-        streams = [("compressor suction", suction, 1.0)]
-        streams += [(label, st, 1.0) for label, st in comp.states]
+        makeup, comp, hp_in, after_duty, streams, losses = self._warm_end(ret, y)
         streams += [
             ("aftercooler outlet, recuperator high-pressure inlet", hp_in, 1.0),
             ("recuperator high-pressure outlet, valve inlet", hp_out, 1.0),
@@ -659,12 +672,7 @@ class SimpleLindeHampson(Liquefier):
             ("make-up gas", makeup, y),
         ]
         q_leak = sc.heat_leak / m if m else 0.0
-        losses = {
-            "compressor": self._exergy_loss([(suction, 1.0)], [(hp_in, 1.0)],
-                                            [(-(comp.heat_rejected + after_duty), self.T0)]),
-            "recuperator": self._exergy_loss([(hp_in, 1.0), (vapour, 1.0 - y)], [(hp_out, 1.0), (ret, 1.0 - y)]),
-            "makeup_mixing": self._exergy_loss([(ret, 1.0 - y), (makeup, y)], [(suction, 1.0)]),
-        }
+        losses["recuperator"] = self._exergy_loss([(hp_in, 1.0), (vapour, 1.0 - y)], [(hp_out, 1.0), (ret, 1.0 - y)])
         losses.update(self._cold_end_losses(y, q_leak, hp_out, valve_out, 1.0, liquid, vapour))
         return self._finish(
             y=y, m=m, streams=streams, compressions=[(comp, 1.0)], after_duty=after_duty, makeup=makeup,

@@ -99,13 +99,7 @@ class PrecooledLindeHampson(Liquefier):
         cold_out = fl.state_ph(cold.hot_outlet_pressure(cold_in.p), cold_in.h - duty_c)
         valve_out = self.valve.run(fl, cold_out)
         ret = fl.state_ph(warm.cold_outlet_pressure(mid_return.p), mid_return.h + duty_w / (1.0 - y))
-        makeup = self.mixer.makeup_state(fl)
-        suction = self.mixer.run(fl, ret, 1.0 - y, y)
-        comp = self.compressor.run(fl, suction, sc.high_pressure)
-        hp_in, after_duty = self.aftercooler.run(fl, comp.outlet)
-
-        streams = [("compressor suction", suction, 1.0)]
-        streams += [(label, st, 1.0) for label, st in comp.states]
+        makeup, comp, hp_in, after_duty, streams, losses = self._warm_end(ret, y)
         streams += [
             ("aftercooler outlet, warm recuperator high-pressure inlet", hp_in, 1.0),
             ("warm recuperator high-pressure outlet, precooler inlet", warm_out, 1.0),
@@ -120,9 +114,7 @@ class PrecooledLindeHampson(Liquefier):
         ]
         q_leak = sc.heat_leak / m if m else 0.0
         T_sink = supply.sink_temperature
-        losses = {
-            "compressor": self._exergy_loss([(suction, 1.0)], [(hp_in, 1.0)],
-                                            [(-(comp.heat_rejected + after_duty), self.T0)]),
+        losses.update({
             "warm_recuperator": self._exergy_loss([(hp_in, 1.0), (mid_return, 1.0 - y)],
                                                   [(warm_out, 1.0), (ret, 1.0 - y)]),
             "precooler": self._exergy_loss([(warm_out, 1.0)], [(cold_in, 1.0)], [(-precooler_duty, T_sink)]),
@@ -130,8 +122,7 @@ class PrecooledLindeHampson(Liquefier):
                 supply.work - refrigeration_exergy(precooler_duty, T_sink, self.T0),
             "cold_recuperator": self._exergy_loss([(cold_in, 1.0), (vapour, 1.0 - y)],
                                                   [(cold_out, 1.0), (mid_return, 1.0 - y)]),
-            "makeup_mixing": self._exergy_loss([(ret, 1.0 - y), (makeup, y)], [(suction, 1.0)]),
-        }
+        })
         losses.update(self._cold_end_losses(y, q_leak, cold_out, valve_out, 1.0, liquid, vapour))
         warn = []
         if supply.lower_bound:
