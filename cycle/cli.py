@@ -362,8 +362,14 @@ def _cmd_gas(args):
 
 def gas_properties(fluid, T, p):
     """Everything ``lhsim gas`` reports, as a dictionary with units in the key names."""
+    from properties import PropertyRangeError
+
     st = fluid.state_tp(T, p)
     T_sat = fluid.saturation_temperature(p)
+    try:
+        T_inv_max = fluid.max_inversion_temperature()
+    except PropertyRangeError:  # no root of T dB/dT - B within the search range
+        T_inv_max = None
     return {
         "gas": fluid.name,
         "temperature_K": st.T,
@@ -375,7 +381,7 @@ def gas_properties(fluid, T, p):
         "jt_coefficient_K_per_bar": fluid.jt_coefficient(T, p) * 1e5,
         "saturation_temperature_K": T_sat,
         "inversion_temperatures_K": list(fluid.inversion_temperatures(p)),
-        "max_inversion_temperature_K": fluid.max_inversion_temperature(),
+        "max_inversion_temperature_K": T_inv_max,
         "critical_temperature_K": fluid.T_critical,
         "critical_pressure_bar": fluid.p_critical / 1e5,
         "triple_point_temperature_K": fluid.T_triple,

@@ -280,8 +280,15 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
         target, unit = spec.ua, "W/K"
         duty, root = _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter)
         res = flow_of(duty) * section.profile(duty).ua() - target
+        if root is None and res < -1e-6 * target:
+            note = (f"note: {key}.ua {target:g} W/K is more than these streams can use (the streams touch at "
+                    f"{res + target:.4g} W/K over {rec.zones} zones): the recuperator acts as a perfect one")
 
     profile = section.profile(duty)
+    if mode == "ua" and root is None and res < -1e-6 * target:
+        message = note
+    else:
+        message = root.flag if root is not None else "the first guess or the bracket end is the root"
     report = SolveReport(
         converged=bool(root.converged) if root is not None else True,
         iterations=int(root.iterations) if root is not None else 0,
@@ -289,7 +296,7 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
         residual=float(res),
         residual_unit=unit,
         tolerance=float(tol),
-        message=root.flag if root is not None else "the first guess or the bracket end is the root",
+        message=message,
         tear_variable=f"{key} duty per kg of compressor flow [J/kg]",
     )
     return duty, profile, report
@@ -369,6 +376,10 @@ def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
         lo, hi = _bracket(excess, guess, 0.0, Q_hi, decreasing=False)
     if lo == hi:
         return lo, None
+    if excess(lo) < 0 and excess(hi) < 0:
+        # Even at the largest duty the streams allow, the UA asked for is not used up: the
+        # exchanger is as good as a perfect one here.
+        return hi, None
     return brentq(excess, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
                   full_output=True, disp=False)
 
@@ -530,7 +541,17 @@ class Liquefier:
         return yield_of, flow_of
 
     def _critical_message(self, eps, eps_crit, key):
-        return (f"no liquid: the {key} effectiveness here, {eps:.4f}, is below the critical value "
+        if eps_crit >= 1.0:
+            return (f"no liquid: even a perfect {key} could not make liquid here (its critical "
+                    f"effectiveness would be {eps_crit:.4f}, above 1): the heat leak or the conditions take "
+                    f"more than the Joule-Thomson effect gives; lower the heat leak, raise the high "
+                    f"pressure or the flow, or precool")
+        spec = self.scenario.recuperator if key == "recuperator" else self.scenario.cold_recuperator
+        sizing = ""
+        if spec is not None and spec.mode != "effectiveness":
+            value = f"{spec.min_approach:g} K" if spec.mode == "min_approach" else f"{spec.ua:g} W/K"
+            sizing = f" (with {key.replace(' ', '_')}.{spec.mode} {value})"
+        return (f"no liquid: the {key} effectiveness here{sizing}, {eps:.4f}, is below the critical value "
                 f"{eps_crit:.4f} for these pressures and temperatures (and heat leak); raise the "
                 f"effectiveness or the high pressure, or precool")
 
@@ -575,6 +596,8 @@ class Liquefier:
         if throttle_outlet.quality is None:
             warn.append("the valve outlet is not two-phase: liquid comes only from the margin of heat leak")
         for name, report in reports.items():
+            if report.message.startswith("note: "):
+                warn.append(report.message[len("note: "):])
             if not report.converged:
                 text = (f"recycle solve of the {name.replace('_', ' ')} did not converge after "
                         f"{report.iterations} iterations ({report.message})")

@@ -208,14 +208,27 @@ def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out,
 
 
 def _h_at(fluid, T, p, state_in):
-    """Enthalpy at (T, p) [J/kg], or the inlet's where T is its temperature; a PT request that
-    lands exactly on the saturation line is nudged by 1e-7 K."""
+    """Enthalpy at (T, p) [J/kg] of a stream warming from ``state_in``.
+
+    At the inlet temperature it is the inlet's.  On the saturation line (a stream boiling at
+    constant pressure) the temperature is taken just above it, so the enthalpy jumps to the
+    saturated vapour's; inside a pseudo-pure fluid's two-phase band (air) the enthalpy is
+    interpolated linearly in temperature between bubble and dew point.
+    """
     if T <= state_in.T:
         return state_in.h
     try:
         return fluid.state_tp(T, p).h
     except ValueError:
-        return fluid.state_tp(T * (1 + 1e-9) + 1e-7, p).h
+        pass
+    if p < fluid.p_critical:
+        liquid, vapour = fluid.saturated_liquid(p), fluid.saturated_vapour(p)
+        if liquid.T * (1 - 1e-5) <= T <= vapour.T * (1 + 1e-5):
+            if vapour.T - liquid.T > 1e-6 * liquid.T:  # pseudo-pure band
+                w = min(max((T - liquid.T) / (vapour.T - liquid.T), 0.0), 1.0)
+                return max(state_in.h, liquid.h + w * (vapour.h - liquid.h))
+            return vapour.h if T >= liquid.T else liquid.h
+    return fluid.state_tp(T * (1 + 3e-6), p).h
 
 
 def composite_profile(fluid, hot_in, hot_p_out, hot_flow, colds, duty, zones):

@@ -141,7 +141,7 @@ def _state_table(result):
 def format_gas(info):
     """The ``lhsim gas`` report as readable text."""
     inv = info["inversion_temperatures_K"]
-    inv_text = ", ".join(f"{t:.1f}" for t in inv) if inv else "none (above the maximum inversion pressure)"
+    inv_text = ", ".join(f"{t:.1f}" for t in inv) if inv else "none (mu_JT keeps one sign along this isobar)"
     sat = info["saturation_temperature_K"]
     lines = [
         f"{info['gas']} at {info['temperature_K']:g} K and {info['pressure_bar']:g} bar ({info['phase']})",
@@ -152,7 +152,9 @@ def format_gas(info):
         _line("saturation temperature at this pressure",
               sat if sat is not None else "none (supercritical)", "K" if sat is not None else "", "{:.3f}"),
         f"  {'inversion temperatures at this pressure':<44s} {inv_text}{' K' if inv else ''}",
-        _line("maximum inversion temperature (p -> 0)", info["max_inversion_temperature_K"], "K", "{:.1f}"),
+        _line("maximum inversion temperature (p -> 0)", info["max_inversion_temperature_K"]
+              if info["max_inversion_temperature_K"] is not None else "not found",
+              "K" if info["max_inversion_temperature_K"] is not None else "", "{:.1f}"),
         _line("critical point", f"{info['critical_temperature_K']:.3f} K, {info['critical_pressure_bar']:.3f} bar"),
         _line("triple point", f"{info['triple_point_temperature_K']:.3f} K, {info['triple_point_pressure_bar']:.4g} bar"),
     ]

@@ -136,6 +136,8 @@ class Scenario:
         """The scenario in SI numbers, defaults filled in, without the source mapping."""
         out = asdict(self)
         out.pop("source")
+        if self.compressor.isothermal_efficiency is not None:
+            out["compressor"].pop("stages")
         for key, value in list(out.items()):
             if isinstance(value, dict):
                 out[key] = {k: v for k, v in value.items() if v is not None}
@@ -280,7 +282,7 @@ def _exactly_one(data, names, section):
     if len(given) > 1:
         raise ScenarioError(f"give one of {listed}, not {' and '.join(section + '.' + g for g in given)}")
     if not given:
-        raise ScenarioError(f"missing {section} sizing: give one of {listed}")
+        raise ScenarioError(f"missing {section} choice: give one of {listed}")
     return given[0]
 
 
@@ -326,7 +328,9 @@ def parse_scenario(data):
         T0 = _quantity(data, "ambient_temperature", "temperature", "ambient_temperature")
     else:
         T0 = DEFAULT_AMBIENT_TEMPERATURE
-    _between(T0, "ambient_temperature", 0, 1000, given=data.get("ambient_temperature"))
+    if not 0 < T0 <= 1000:
+        raise ScenarioError(f"ambient_temperature must be above 0 K and at most 1000 K, got "
+                            f"{data.get('ambient_temperature')!r}")
 
     for key in ("low_pressure", "high_pressure"):
         _require(data, key, key, f"a pressure such as {_EXAMPLES['pressure']}")
@@ -370,8 +374,9 @@ def parse_scenario(data):
             raise ScenarioError("warm_recuperator.low_side_pressure_drop plus cold_recuperator."
                                 f"low_side_pressure_drop must be below low_pressure ({_bar(p_low)})")
         if warm.high_side_pressure_drop + cold.high_side_pressure_drop >= p_hot_in - p_low:
-            raise ScenarioError("the recuperators' high_side_pressure_drop together must leave the "
-                                "high-pressure stream above low_pressure")
+            raise ScenarioError("warm_recuperator.high_side_pressure_drop plus cold_recuperator."
+                                f"high_side_pressure_drop must be below {_bar(p_hot_in - p_low)}, got "
+                                f"{_bar(warm.high_side_pressure_drop + cold.high_side_pressure_drop)}")
     if dual is not None and dual.intermediate_pressure - recuperator.low_side_pressure_drop <= p_low:
         raise ScenarioError("dual_pressure.intermediate_pressure less recuperator.low_side_pressure_drop "
                             f"must stay above low_pressure ({_bar(p_low)})")
@@ -461,8 +466,9 @@ def _parse_compressor(section):
     if section is None:
         raise ScenarioError("missing compressor: expected compressor.isothermal_efficiency, or "
                             "compressor.stages with compressor.isentropic_efficiency")
-    if "isothermal_efficiency" in section and ("isentropic_efficiency" in section or "stages" in section):
-        other = "isentropic_efficiency" if "isentropic_efficiency" in section else "stages"
+    given = {k for k, v in section.items() if v is not None}
+    if "isothermal_efficiency" in given and ("isentropic_efficiency" in given or "stages" in given):
+        other = "isentropic_efficiency" if "isentropic_efficiency" in given else "stages"
         raise ScenarioError(f"give one of compressor.isothermal_efficiency or compressor.stages with "
                             f"compressor.isentropic_efficiency, not compressor.isothermal_efficiency and compressor.{other}")
     if section.get("isothermal_efficiency") is not None:
@@ -484,13 +490,15 @@ def _parse_aftercooler(section, T0, p_high, p_low):
     T_out = T0
     if section.get("outlet_temperature") is not None:
         T_out = _quantity(section, "outlet_temperature", "temperature", "aftercooler.outlet_temperature")
-        _between(T_out, "aftercooler.outlet_temperature", 0, 1000, given=section["outlet_temperature"])
+        if not 0 < T_out <= 1000:
+            raise ScenarioError(f"aftercooler.outlet_temperature must be above 0 K and at most 1000 K, got "
+                                f"{section['outlet_temperature']!r}")
     dp = 0.0
     if section.get("pressure_drop") is not None:
         dp = _quantity(section, "pressure_drop", "pressure", "aftercooler.pressure_drop")
         if dp < 0 or p_high - dp <= p_low:
-            raise ScenarioError(f"aftercooler.pressure_drop must be 0 or more and leave the pressure above "
-                                f"low_pressure, got {section['pressure_drop']!r}")
+            raise ScenarioError(f"aftercooler.pressure_drop must be 0 or more and below high_pressure less "
+                                f"low_pressure ({_bar(p_high - p_low)}), got {section['pressure_drop']!r}")
     return AftercoolerSpec(outlet_temperature=T_out, pressure_drop=dp)
 
 
@@ -560,9 +568,25 @@ def read_mapping(path):
     """
     import yaml
 
+    class Loader(yaml.SafeLoader):
+        """Safe YAML that refuses a key given twice in one mapping."""
+
+    def mapping(loader, node, deep=False):
+        seen = set()
+        for key_node, _ in node.value:
+            key = loader.construct_object(key_node, deep=deep)
+            if key in seen:
+                raise ScenarioError(f"scenario file {path}: key {key} is given twice (line "
+                                    f"{key_node.start_mark.line + 1}); give each key once")
+            seen.add(key)
+        return yaml.SafeLoader.construct_mapping(loader, node, deep=deep)
+
+    Loader.add_constructor(yaml.resolver.BaseResolver.DEFAULT_MAPPING_TAG, mapping)
     try:
         with open(path, encoding="utf-8") as handle:
-            data = yaml.safe_load(handle)
+            data = yaml.load(handle, Loader=Loader)
+    except UnicodeDecodeError:
+        raise ScenarioError(f"scenario file {path} is not UTF-8 text; save it as UTF-8") from None
     except FileNotFoundError:
         raise ScenarioError(f"scenario file {path} not found") from None
     except OSError as err:

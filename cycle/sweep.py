@@ -439,7 +439,7 @@ def run_sweep(data, out, workers=None, dask=None, overwrite=False, progress=None
     todo = [(k, mapping) for k, (values, mapping) in enumerate(points) if k not in results.done]
     workers = workers or os.cpu_count() or 1
     # A few batches per worker: few enough that scheduling costs little, enough to balance load.
-    size = batch_size or max(1, min(25, math.ceil(len(todo) / (8 * workers)) if todo else 1))
+    size = batch_size or max(1, min(25, math.ceil(len(todo) / (16 * workers)) if todo else 1))
     batches = list(_batches(todo, size))
     show = sys.stderr.isatty() if progress is None else progress
     failed = sum(1 for cells in results.rows.values() if cells[columns.index("status")] != "ok")

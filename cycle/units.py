@@ -34,6 +34,14 @@ _SPELLINGS = {
 }
 
 
+# Gauge pressure spellings (refused: lhsim works in absolute pressure).
+_GAUGE = {"barg", "psig", "kpag", "mpag", "pag", "mbarg"}
+# A temperature difference written in an offset unit means the difference in that unit.
+_OFFSET_UNITS = {"degC": "delta_degC", "°C": "delta_degC", "celsius": "delta_degC", "degree_Celsius": "delta_degC",
+                 "degF": "delta_degF", "°F": "delta_degF", "fahrenheit": "delta_degF",
+                 "degree_Fahrenheit": "delta_degF"}
+
+
 class UnitError(ValueError):
     """A quantity string could not be read, or has the wrong dimension."""
 
@@ -80,8 +88,10 @@ def parse_quantity(value, dimension):
     if not match:
         raise UnitError(f"expected a number followed by a unit, got {value!r}")
     number, unit = float(match.group(1)), match.group(2)
+    if not math.isfinite(number):
+        raise UnitError(f"expected a finite number, got {value!r}")
     unit = _SPELLINGS.get(unit, unit)
-    if unit.lower().endswith("barg") or unit.lower() in ("psig",):
+    if unit.lower() in _GAUGE:
         raise UnitError(f"gauge pressures are not accepted (give absolute pressure), got {value!r}")
     dim, si = DIMENSIONS[dimension]
     if not unit:
@@ -90,8 +100,8 @@ def parse_quantity(value, dimension):
 
     ureg = registry()
     try:
-        if dimension == "temperature_difference" and unit in ("degC", "°C", "celsius", "degree_Celsius"):
-            unit = "delta_degC"
+        if dimension == "temperature_difference" and unit in _OFFSET_UNITS:
+            unit = _OFFSET_UNITS[unit]
         quantity = ureg.Quantity(number, unit)
     except (pint.errors.UndefinedUnitError, AttributeError, ValueError, TypeError) as err:
         raise UnitError(f"unknown unit {unit!r} in {value!r}") from err
@@ -101,7 +111,10 @@ def parse_quantity(value, dimension):
         return float(quantity.to("dimensionless").magnitude)
     if quantity.dimensionality != ureg.get_dimensionality(dim):
         raise UnitError(f"expected a {dimension.replace('_', ' ')} (for example in {_EXAMPLE[dimension]}), got {value!r}")
-    return float(quantity.to(si).magnitude)
+    out = float(quantity.to(si).magnitude)
+    if not math.isfinite(out):
+        raise UnitError(f"expected a finite number, got {value!r}")
+    return out
 
 
 _EXAMPLE = {

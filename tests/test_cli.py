@@ -143,3 +143,9 @@ def test_help_imports_no_heavy_library():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
     assert out.returncode == 0
     assert out.stdout.strip().splitlines()[-1] == "HEAVY="
+
+
+def test_gas_without_a_maximum_inversion_temperature_in_range(capsys):
+    # R134a: T dB/dT - B has no root below three times CoolProp's upper temperature.
+    code, out, _ = run(capsys, "gas", "R134a", "-T", "300 K", "-p", "1 bar", "--json")
+    assert code == 0 and json.loads(out)["max_inversion_temperature_K"] is None

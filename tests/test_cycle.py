@@ -294,3 +294,10 @@ def test_laws_hold_over_random_scenarios(gas, p_high, eps, eta, dp_high, leak):
                           - by["separator vapour, recuperator low-pressure inlet"].s))
     assert s_gen >= -1e-9
     assert math.isfinite(result.summary()["work_kJ_per_kg_liquid"])
+
+
+def test_more_ua_than_the_streams_can_use_acts_as_a_perfect_exchanger():
+    result = solve_scenario(simple(recuperator={"ua": "50000 W/K", "zones": 30},
+                                   production={"compressor_flow": "100 kg/h"}))
+    assert result.liquid_yield == pytest.approx(ideal_yield(get_fluid("nitrogen"), 300.0, ATM, 200e5), rel=1e-4)
+    assert any("more than these streams can use" in w for w in result.warnings)

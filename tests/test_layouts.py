@@ -301,3 +301,18 @@ def test_cli_shows_the_breakdown_sorted_with_shares(capsys):
     assert {"compressor", "recuperator", "throttle_valve", "separator", "heat_leak", "makeup_mixing"} <= set(exergy)
     assert data["summary"]["ideal_work_kJ_per_kg_liquid"] + sum(exergy.values()) == pytest.approx(
         data["summary"]["work_kJ_per_kg_liquid"], rel=1e-8)
+
+
+@pytest.mark.parametrize("gas, p_mid", [("nitrogen", "20 bar"), ("nitrogen", "30 bar"), ("air", "25 bar")])
+def test_dual_pressure_with_a_boiling_intermediate_stream(gas, p_mid):
+    # Below the critical pressure the intermediate-pressure stream leaves the first valve two-phase
+    # and boils in the recuperator; the composite curve takes its boiling plateau.
+    sc = scenario(gas, recuperator={"min_approach": "3 K", "zones": 30},
+                  dual_pressure={"intermediate_pressure": p_mid, "recirculated_fraction": 0.6})
+    result = solve_scenario(sc)
+    by = {x.name: x.state for x in result.states}
+    assert by["first valve outlet (intermediate pressure)"].quality is not None
+    assert result.recuperator.min_approach == pytest.approx(3.0, abs=1e-5)
+    assert abs(result.energy_balance_residual) < 1e-8
+    total = result.ideal_work_per_kg_liquid + sum(result.exergy_losses_per_kg_liquid().values())
+    assert total == pytest.approx(result.work_per_kg_liquid, rel=1e-7)
