@@ -242,7 +242,38 @@ def main():
                 f"{CoolProp.__version__}, {platform.machine()}, 2 cores. The point: nitrogen 1.05 -> 200 bar, "
                 f"isothermal compressor, recuperator sized by UA = 400 W/K over 50 zones, 150 kg/h compressor "
                 f"flow. Times are medians of repeated runs; compare them as ratios.\n\n")
-        pathlib.Path(args.write).write_text(head + "\n".join(lines) + "\n")
+        notes = """
+## What makes a point cheap
+
+- **The march** (`properties/march.py`): each recuperator state is solved by Newton's method on
+  (T, molar density) with CoolProp's `DmolarT_INPUTS` and analytic partial derivatives, started from a
+  straight-line extrapolation of the two previous zones, so most states take two density-temperature
+  updates; two-phase states come from cached saturation bounds at their pressure; CoolProp's own
+  flash is the fall-back (and solves the first state of a march). `tests/test_march.py` checks
+  |dT| <= 1e-6 K against the flash over random states of twelve fluids, across saturation and near
+  the critical point. Near the critical point the march meets (p, h) more closely than the flash
+  does: for oxygen at 1.001 p_c the flash returned a state 928 kJ/kg away from the enthalpy asked
+  for, where the march's state is within 1e-7 J/kg.
+- **Fewer marches**: a first guess of the recuperator duty (for a minimum approach, the duty that
+  puts the return gas that far below the hot inlet, exact when the pinch is at the warm end; for a
+  UA, the effectiveness-NTU relation with mean heat capacities), an outward bracket from it, then
+  Brent's method; profiles already marched are remembered. The tolerance on the duty is 1e-10 of its
+  largest value (about 2e-5 J/kg), reported in each solve as `tolerance`.
+- **Caches**: one `AbstractState` per fluid per process; saturation data per pressure kept.
+- **Start-up**: `lhsim --help` and argument errors import neither CoolProp, pandas, matplotlib,
+  SciPy nor Dask (a test checks this); importing CoolProp costs about 2.5 s per process, paid once.
+
+## Not done
+
+- **Tabulated properties** (TTSE/bicubic) are left out: the march already gives HEOS answers at a
+  fraction of the flash cost, and the tables' error and the crash seen when building them in the
+  worker process would need their own measurement across the demos and a sweep before use.
+- **The 50-equivalent goal is not met.** About half of a point's time is Python around the property
+  calls (loops, the root finder, building results), and each march still costs some 2 density
+  updates per state. Further gains would come from fewer zones where the profile is straight,
+  vectorised zone arithmetic, or a compiled march.
+"""
+        pathlib.Path(args.write).write_text(head + "\n".join(lines) + "\n" + notes)
         print(f"wrote {args.write}")
 
 
