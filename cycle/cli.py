@@ -241,7 +241,7 @@ def _cmd_plot(args):
         return _fail(f"results file {path} could not be read as a table: {err}")
     if args.out and not args.out.lower().endswith((".png", ".svg")):
         return _fail(f"--out must end in .png or .svg, got {args.out}")
-    from cycle.plots import save, sweep_chart
+    from cycle.plots import sweep_chart
 
     try:
         fig, _ = sweep_chart(frame, args.x, args.y, args.by)

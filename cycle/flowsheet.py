@@ -540,6 +540,31 @@ class Liquefier:
 
         return yield_of, flow_of
 
+    def _solve_cold_end(self, rec, hot_in, liquid, vapour, xtol, maxiter):
+        """Solve the recuperator whose high-pressure outlet feeds the valve into the separator.
+
+        Returns (duty, profile, solve report, yield, effectiveness, critical effectiveness,
+        compressor flow [kg/s] or None); raises NoLiquefactionError where the yield is not positive.
+        """
+        fl, sc = self.fluid, self.scenario
+        yield_at, flow_at = self._yield_function(liquid, vapour)
+
+        def yield_of(duty):
+            return yield_at(hot_in.h - duty)
+
+        section = Section(fl, rec, hot_in, lambda d: [(vapour, 1.0 - yield_of(d))], vapour.T)
+        lowest = max(0.0, hot_in.h - vapour.h)  # below this duty no liquid (liquid-rate target)
+        duty, prof, report = solve_section(section, lambda d: flow_at(yield_of(d)), lowest, xtol, maxiter)
+        y = yield_of(duty)
+        eps = section.effectiveness(duty)
+        m_fixed, _ = self._production(liquid)
+        q0 = sc.heat_leak / m_fixed if m_fixed else 0.0
+        # y = 0 when the high-pressure outlet leaves with h = hg - q (all the flow returns).
+        eps_crit = rec.effectiveness(fl, hot_in, [(vapour, 1.0)], hot_in.h - vapour.h + q0)
+        if y <= 0:
+            raise NoLiquefactionError(self._critical_message(eps, eps_crit, rec.key.replace("_", " ")))
+        return duty, prof, report, y, eps, eps_crit, flow_at(y)
+
     def _critical_message(self, eps, eps_crit, key):
         if eps_crit >= 1.0:
             return (f"no liquid: even a perfect {key} could not make liquid here (its critical "
@@ -663,23 +688,7 @@ class SimpleLindeHampson(Liquefier):
         fl, sc, rec = self.fluid, self.scenario, self.recuperator
         hot_in, liquid, vapour = self._fixed_states(self.suction_pressure)
         self._check_inversion(hot_in, self.suction_pressure)
-        yield_at, flow_at = self._yield_function(liquid, vapour)
-
-        def yield_of(duty):
-            return yield_at(hot_in.h - duty)
-
-        section = Section(fl, rec, hot_in, lambda d: [(vapour, 1.0 - yield_of(d))], vapour.T)
-        lowest = max(0.0, hot_in.h - vapour.h)  # below this duty no liquid (liquid-rate target)
-        duty, prof, report = solve_section(section, lambda d: flow_at(yield_of(d)), lowest, xtol, maxiter)
-        y = yield_of(duty)
-        eps = section.effectiveness(duty)
-        m_fixed, m_liq = self._production(liquid)
-        q0 = sc.heat_leak / m_fixed if m_fixed else 0.0
-        # y = 0 when the high-pressure outlet leaves with h = hg - q (all the flow returns).
-        eps_crit = rec.effectiveness(fl, hot_in, [(vapour, 1.0)], hot_in.h - vapour.h + q0)
-        if y <= 0:
-            raise NoLiquefactionError(self._critical_message(eps, eps_crit, "recuperator"))
-        m = flow_at(y)
+        duty, prof, report, y, eps, eps_crit, m = self._solve_cold_end(rec, hot_in, liquid, vapour, xtol, maxiter)
 
         hp_out = fl.state_ph(rec.hot_outlet_pressure(hot_in.p), hot_in.h - duty)
         valve_out = self.valve.run(fl, hp_out)

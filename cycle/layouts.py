@@ -63,24 +63,9 @@ class PrecooledLindeHampson(Liquefier):
         cold_in = self._keyed_state("precooling.temperature", sc.precooling.temperature, p_mid_hot)
         p_mid_cold = cold.cold_outlet_pressure(vapour.p)
         self._check_inversion(cold_in, p_mid_cold, precooled=True)
-        yield_at, flow_at = self._yield_function(liquid, vapour)
-
         # Cold section first: the precooler fixes its hot inlet.
-        def yield_of(duty):
-            return yield_at(cold_in.h - duty)
-
-        cold_section = Section(fl, cold, cold_in, lambda d: [(vapour, 1.0 - yield_of(d))], vapour.T)
-        lowest = max(0.0, cold_in.h - vapour.h)
-        duty_c, prof_c, report_c = solve_section(cold_section, lambda d: flow_at(yield_of(d)), lowest,
-                                                 xtol, maxiter)
-        y = yield_of(duty_c)
-        eps_c = cold_section.effectiveness(duty_c)
-        m_fixed, _ = self._production(liquid)
-        q0 = sc.heat_leak / m_fixed if m_fixed else 0.0
-        eps_crit = cold.effectiveness(fl, cold_in, [(vapour, 1.0)], cold_in.h - vapour.h + q0)
-        if y <= 0:
-            raise NoLiquefactionError(self._critical_message(eps_c, eps_crit, "cold recuperator"))
-        m = flow_at(y)
+        duty_c, prof_c, report_c, y, eps_c, eps_crit, m = self._solve_cold_end(cold, cold_in, liquid, vapour,
+                                                                              xtol, maxiter)
         mid_return = fl.state_ph(p_mid_cold, vapour.h + duty_c / (1.0 - y))
 
         # Warm section: both flows are known now.

@@ -17,7 +17,7 @@ from cycle import cli
 from cycle.errors import NoLiquefactionError, ScenarioError
 from cycle.flowsheet import dual_pressure_ideal_yield, ideal_work_of_liquefaction, ideal_yield, solve_scenario
 from cycle.processes import carnot_cop
-from cycle.scenario import load_scenario, parse_scenario
+from cycle.scenario import parse_scenario
 from properties import get_fluid
 
 ATM = 101325.0

@@ -3,7 +3,6 @@
 import base64
 import html.parser
 import pathlib
-import re
 import shutil
 import subprocess
 import xml.etree.ElementTree as ET

@@ -14,7 +14,7 @@ import pytest
 from cycle import api, cli
 from cycle.errors import ScenarioError
 from cycle.studies import compare, optimize
-from cycle.sweep import expand, run_point, run_sweep, validate
+from cycle.sweep import expand, run_point, run_sweep
 from properties import get_fluid
 
 BASE = {
