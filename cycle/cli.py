@@ -45,7 +45,8 @@ def _parser():
         formatter_class=_Formatter)
     run.add_argument("scenario", metavar="SCENARIO.yaml", help="scenario file")
     run.add_argument("--json", action="store_true",
-                     help="print one JSON object (scenario, summary, states, warnings) and nothing else")
+                     help="print one JSON object and nothing else: scenario (SI), layout, summary, "
+                          "exergy_losses_kJ_per_kg_liquid, states, warnings, solve, recuperator_profiles")
     run.add_argument("--plots", metavar="DIR",
                      help="also write the T-s diagram, recuperator profiles and loss chart (PNG and SVG) into DIR")
 
