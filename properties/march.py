@@ -85,7 +85,7 @@ class PhMarch:
                 guess = (T_b * (1 - 1e-4), D_l) if side == "liquid" else (T_d * (1 + 1e-4), D_v)
         if guess is None:
             return self._flash(p, h, full)
-        found = self._newton(p, h, guess[0], guess[1])
+        found = self._newton(p, h, guess[0], guess[1], final_step=not full)
         if found is None:
             return self._flash(p, h, full)
         T, D = found
@@ -105,7 +105,10 @@ class PhMarch:
         T_melt = self.fluid.melting_temperature(p)
         return T_melt is not None and T < T_melt
 
-    def _newton(self, p, h, T, D):
+    def _newton(self, p, h, T, D, final_step=False):
+        """Newton's method on (T, D); with ``final_step`` a last step small enough that the
+        next would change T by far less than 1e-6 K (quadratic convergence) is taken without
+        evaluating the state there (temperature-only marches)."""
         st = self.state
         for _ in range(_MAX_STEPS):
             try:
@@ -133,6 +136,8 @@ class PhMarch:
                 scale = min(scale, 0.5 * D / -dD)
             T += scale * dT
             D += scale * dD
+            if final_step and scale == 1.0 and abs(dT) < 1e-4 and abs(dD) < 1e-7 * D:
+                return T, D
         return None
 
     def _flash(self, p, h, full=True):
