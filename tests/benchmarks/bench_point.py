@@ -247,7 +247,7 @@ def main():
 
 - **The march** (`properties/march.py`): each recuperator state is solved by Newton's method on
   (T, molar density) with CoolProp's `DmolarT_INPUTS` and analytic partial derivatives, started from a
-  straight-line extrapolation of the two previous zones, so most states take two density-temperature
+  straight-line extrapolation of the two previous zones, so most states take one or two density-temperature
   updates; two-phase states come from cached saturation bounds at their pressure; CoolProp's own
   flash is the fall-back (and solves the first state of a march). `tests/test_march.py` checks
   |dT| <= 1e-6 K against the flash over random states of twelve fluids, across saturation and near
@@ -269,7 +269,7 @@ def main():
   fraction of the flash cost, and the tables' error and the crash seen when building them in the
   worker process would need their own measurement across the demos and a sweep before use.
 - **The 50-equivalent goal is not met.** About half of a point's time is Python around the property
-  calls (loops, the root finder, building results), and each march still costs some 2 density
+  calls (loops, the root finder, building results), and each march still costs one to two density
   updates per state. Further gains would come from fewer zones where the profile is straight,
   vectorised zone arithmetic, or a compiled march.
 """
