@@ -160,9 +160,7 @@ def test_parquet_output(tmp_path):
 def test_sigkill_then_rerun_gives_the_uninterrupted_file(tmp_path):
     import yaml
 
-    scenario = tmp_path / "sweep.yaml"
-    scenario.write_text(yaml.safe_dump(dict(BASE, sweep={"high_pressure": {"from": "60 bar", "to": "300 bar",
-                                                                          "steps": 120}})))
+    scenario = _sweep_file(tmp_path, 120)
     out = tmp_path / "r.csv"
     cmd = [sys.executable, "-m", "cycle.cli", "sweep", str(scenario), "--out", str(out), "--workers", "1"]
     proc = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
@@ -281,8 +279,11 @@ def test_api_for_notebooks(tmp_path):
 def _sweep_file(tmp_path, steps):
     import yaml
 
+    # Points sized by minimum approach over 60 zones take some 20 ms each: slow enough to be
+    # interrupted half-way on any machine.
+    slow = dict(BASE, recuperator={"min_approach": "2 K", "zones": 60})
     scenario = tmp_path / "sweep.yaml"
-    scenario.write_text(yaml.safe_dump(dict(BASE, sweep={"high_pressure": {"from": "60 bar", "to": "300 bar",
+    scenario.write_text(yaml.safe_dump(dict(slow, sweep={"high_pressure": {"from": "60 bar", "to": "300 bar",
                                                                           "steps": steps}})))
     return scenario
 
