@@ -342,7 +342,16 @@ def sweep_data(frame, x, y, by=None):
             raise ScenarioError(f"column {key} is not in the results; columns: {', '.join(map(str, frame.columns))}")
     x_label, fx = axis_label(x)
     y_label, fy = axis_label(y)
-    groups = [(None, frame)] if not by else list(frame.groupby(by, sort=False))
+    # Other swept keys (the columns between "point" and "status" of a sweep file) would zigzag a
+    # line: each of their combinations gets a line of its own.
+    cols = list(frame.columns)
+    swept = cols[cols.index("point") + 1: cols.index("status")] if "point" in cols and "status" in cols else []
+    keys = ([by] if by else []) + [k for k in swept if k not in (x, by) and frame[k].nunique() > 1]
+    if keys:
+        groups = [(", ".join(f"{k} = {v}" for k, v in zip(keys, value if isinstance(value, tuple) else (value,))), part)
+                  for value, part in frame.groupby(keys if len(keys) > 1 else keys[0], sort=False)]
+    else:
+        groups = [(None, frame)]
     lines, misses = [], []
     for value, part in groups:
         part = part.sort_values(x)
@@ -350,7 +359,7 @@ def sweep_data(frame, x, y, by=None):
         bad = part[part["status"] != "ok"] if "status" in part else part.iloc[0:0]
         lines.append((value, ok[x].to_numpy(float) * fx, ok[y].to_numpy(float) * fy))
         misses.append((value, bad[x].to_numpy(float) * fx, list(bad["status"]) if len(bad) else []))
-    return {"x_label": x_label, "y_label": y_label, "lines": lines, "misses": misses, "by": by}
+    return {"x_label": x_label, "y_label": y_label, "lines": lines, "misses": misses, "by": by, "keys": keys}
 
 
 def sweep_chart(frame, x, y, by=None):
@@ -360,19 +369,32 @@ def sweep_chart(frame, x, y, by=None):
     data = sweep_data(frame, x, y, by)
     fig, ax = plt.subplots(figsize=(7.5, 5.0))
     markers = ["o", "s", "^", "D", "v", "P", "X", "*"]
+    styles = ["-", "--", ":", "-."]
+    first = data["keys"][0] if data["keys"] else None
+    firsts = []
+    for value, _, _ in data["lines"]:
+        head = value.split(", ")[0] if value else None
+        if head not in firsts:
+            firsts.append(head)
+    seen = {}
     for k, ((value, xs, ys), (_, bx, statuses)) in enumerate(zip(data["lines"], data["misses"])):
-        colour = PALETTE[k % len(PALETTE)]
-        label = f"{by} = {value}" if by else None
+        # Colour by the first key (the --by column), line style by the others.
+        head = value.split(", ")[0] if value else None
+        colour = PALETTE[firsts.index(head) % len(PALETTE)]
+        style = styles[seen.get(head, 0) % len(styles)]
+        seen[head] = seen.get(head, 0) + 1
+        label = value if first else None
         if len(xs):
-            ax.plot(xs, ys, marker=markers[k % len(markers)], ms=4, color=colour, lw=1.8, label=label)
+            ax.plot(xs, ys, marker=markers[firsts.index(head) % len(markers)], ms=4, color=colour, lw=1.8,
+                    ls=style, label=label)
         if len(bx):
             ax.plot(bx, np.zeros_like(bx), "x", color=colour, ms=7, mew=1.6, transform=ax.get_xaxis_transform(),
-                    clip_on=False, label=(f"{label}: no liquid or failed" if by else "no liquid or failed"))
+                    clip_on=False, label=(f"{label}: no liquid or failed" if label else "no liquid or failed"))
     ax.set_xlabel(data["x_label"])
     ax.set_ylabel(data["y_label"])
     ax.set_title(f"{data['y_label'].split(' [')[0]} against {data['x_label'].split(' [')[0]}")
-    if by or any(len(m[1]) for m in data["misses"]):
-        ax.legend(fontsize=8)
+    if first or any(len(m[1]) for m in data["misses"]):
+        ax.legend(fontsize=7 if len(data["lines"]) > 4 else 8)
     fig.tight_layout()
     return fig, data
 

@@ -104,10 +104,10 @@ def test_sweep_chart_draws_the_results(tmp_path, capsys):
     assert data["x_label"] == "high pressure [bar]" and data["y_label"] == "liquid yield [-]"
     lines = {value: (xs, ys) for value, xs, ys in data["lines"]}
     ok = frame[(frame.gas == "argon") & (frame.status == "ok")].sort_values("high_pressure")
-    assert lines["argon"][0] == pytest.approx(ok.high_pressure.to_numpy() / 1e5, rel=1e-12)  # Pa shown in bar
-    assert np.array_equal(lines["argon"][1], ok.liquid_yield.to_numpy())
+    assert lines["gas = argon"][0] == pytest.approx(ok.high_pressure.to_numpy() / 1e5, rel=1e-12)  # Pa shown in bar
+    assert np.array_equal(lines["gas = argon"][1], ok.liquid_yield.to_numpy())
     misses = {value: xs for value, xs, _ in data["misses"]}
-    assert len(misses["neon"]) == 5 and len(lines["neon"][0]) == 0  # neon: no liquid without precooling
+    assert len(misses["gas = neon"]) == 5 and len(lines["gas = neon"][0]) == 0  # neon: no liquid without precooling
     assert plots.axis_label("work_kJ_per_kg_liquid")[0] == "work [kJ/kg of liquid]"
     assert plots.axis_label("recuperator.ua")[0] == "recuperator: ua [W/K]"
     assert cli.main(["plot", str(out), "--x", "high_pressure", "--y", "figure_of_merit", "--by", "gas"]) == 0
@@ -188,3 +188,19 @@ def test_report_renders_in_a_real_browser(tmp_path):
     pixels = matplotlib.image.imread(shot)[..., :3]
     # The T-s diagram and the tables put many non-white pixels on the page.
     assert (pixels.mean(axis=2) < 0.9).mean() > 0.02
+
+
+def test_other_swept_keys_get_lines_of_their_own(tmp_path):
+    from cycle.sweep import run_sweep
+    import pandas as pd
+
+    data = dict(SWEEP, sweep={"high_pressure": {"from": "100 bar", "to": "200 bar", "steps": 3},
+                              "recuperator.effectiveness": [0.95, 0.99], "gas": ["nitrogen", "argon"]})
+    out = tmp_path / "r.csv"
+    run_sweep(data, out, workers=1)
+    frame = pd.read_csv(out, keep_default_na=False, na_values=[""])
+    _, drawn = plots.sweep_chart(frame, "high_pressure", "liquid_yield", "gas")
+    labels = [value for value, _, _ in drawn["lines"]]
+    assert len(labels) == 4 and "gas = argon, recuperator.effectiveness = 0.99" in labels
+    for _, xs, _ in drawn["lines"]:
+        assert list(xs) == sorted(xs) and len(xs) == 3  # one point per pressure: no zigzag
