@@ -168,6 +168,17 @@ class ExchangerProfile:
         return float(np.sum(np.diff(self.duty) / lmtd))
 
 
+def _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones):
+    """Zone boundaries of the high-pressure stream, cold end first: duty fraction, cumulative
+    duty [J/kg], pressure [Pa] (falling in proportion to the duty) and temperature [K]."""
+    frac = np.linspace(0.0, 1.0, zones + 1)
+    q = duty * frac
+    h_hot = (hot_in.h - duty / hot_flow) + q / hot_flow
+    p_hot = hot_p_out + frac * (hot_in.p - hot_p_out)
+    hot_T = np.append(fluid.temperatures_ph(p_hot[:-1], h_hot[:-1]), hot_in.T)
+    return frac, q, p_hot, hot_T
+
+
 def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out, cold_flow, duty, zones):
     """March a counterflow exchanger in ``zones`` equal-duty zones.
 
@@ -196,13 +207,9 @@ def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out,
     -------
     ExchangerProfile
     """
-    frac = np.linspace(0.0, 1.0, zones + 1)
-    q = duty * frac
-    h_hot = (hot_in.h - duty / hot_flow) + q / hot_flow
+    frac, q, p_hot, hot_T = _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones)
     h_cold = cold_in.h + q / cold_flow
-    p_hot = hot_p_out + frac * (hot_in.p - hot_p_out)
     p_cold = cold_in.p + frac * (cold_p_out - cold_in.p)
-    hot_T = np.append(fluid.temperatures_ph(p_hot[:-1], h_hot[:-1]), hot_in.T)
     cold_T = np.insert(fluid.temperatures_ph(p_cold[1:], h_cold[1:]), 0, cold_in.T)
     return ExchangerProfile(q, hot_T, cold_T, p_hot, p_cold)
 
@@ -290,11 +297,7 @@ def composite_profile(fluid, hot_in, hot_p_out, hot_flow, colds, duty, zones):
     else:
         T_out = brentq(lambda T: outlet_absorbed(T) - duty, T_low, T_top, xtol=1e-9, rtol=1e-13)
 
-    frac = np.linspace(0.0, 1.0, zones + 1)
-    q = duty * frac
-    h_hot = (hot_in.h - duty / hot_flow) + q / hot_flow
-    p_hot = hot_p_out + frac * (hot_in.p - hot_p_out)
-    hot_T = np.append(fluid.temperatures_ph(p_hot[:-1], h_hot[:-1]), hot_in.T)
+    _, q, p_hot, hot_T = _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones)
     cold_T = np.empty(zones + 1)
     cold_T[0], cold_T[-1] = T_low, T_out
     for k in range(1, zones):
