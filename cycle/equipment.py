@@ -272,9 +272,7 @@ class Precooler:
             per_kg = spec.coolant_work
             lower = per_kg is None
             if lower:
-                from cycle.flowsheet import ideal_work_of_liquefaction
-
-                per_kg = ideal_work_of_liquefaction(get_fluid(spec.coolant), T0, spec.coolant_pressure)
+                per_kg = processes.ideal_work_of_liquefaction(get_fluid(spec.coolant), T0, spec.coolant_pressure)
             return PrecoolingSupply(boiled * per_kg, liquid.T, boiled, per_kg, lower)
         cop = spec.refrigerator_cop
         if cop is None:

@@ -27,6 +27,7 @@ import warnings
 from scipy.optimize import brentq, minimize_scalar
 
 from cycle.equipment import Aftercooler, Compressor, MakeupMixer, Recuperator, Separator, ThrottleValve
+from cycle.processes import ideal_work_of_liquefaction  # noqa: F401 (a textbook relation, re-exported)
 from cycle.errors import NoLiquefactionError, RecycleNotConvergedWarning, ScenarioError, UnreachableSizingError
 from cycle.results import CycleResult, RecuperatorResult, SolveReport, StreamState
 
@@ -35,22 +36,6 @@ DUTY_RTOL = 1e-10
 
 
 # -- textbook relations -------------------------------------------------------------------
-
-def ideal_work_of_liquefaction(fluid, T0, p):
-    """Minimum work to liquefy gas taken at ``T0`` [K] and ``p`` [Pa] to saturated liquid at ``p``.
-
-    ``W_ideal = T0 (s1 - sf) - (h1 - hf)`` [J/kg]: also the exergy of the liquid relative to
-    the gas at ambient conditions.
-
-    References
-    ----------
-    R. F. Barron, *Cryogenic Systems*, 2nd ed., Oxford University Press, 1985, sec. 3.1
-    and Table 3.1 (ideal work of liquefaction of common gases from 300 K and 1 atm).
-    """
-    gas = fluid.state_tp(T0, p)
-    liquid = fluid.saturated_liquid(p)
-    return T0 * (gas.s - liquid.s) - (gas.h - liquid.h)
-
 
 def ideal_yield(fluid, T, p_low, p_high):
     """Yield of the ideal simple Linde-Hampson cycle, y = (h1 - h2) / (h1 - hf).

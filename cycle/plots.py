@@ -314,7 +314,7 @@ _SUFFIX_UNITS = [("_kJ_per_kg_compressed", "kJ/kg of compressor flow"), ("_kJ_pe
 def axis_label(key):
     """Quantity and unit for a column: swept keys from the scenario schema, summary keys from
     the unit their name ends with (as in the glossary).  Returns (label, factor to apply)."""
-    from cycle.sweep import _kind_of
+    from cycle.scenario import key_kind
 
     if key in ("liquid_yield", "figure_of_merit", "energy_balance_residual") or key.endswith(
             ("_effectiveness", "_position", "_quality")):
@@ -323,7 +323,7 @@ def axis_label(key):
         if key.endswith(suffix):
             return f"{key[: -len(suffix)].replace('_', ' ')} [{unit}]", 1.0
     try:
-        kind = _kind_of(key)
+        kind = key_kind(key)
     except Exception:
         return key.replace("_", " "), 1.0
     kind = kind[0] if isinstance(kind, tuple) else kind

@@ -11,6 +11,22 @@ import math
 import numpy as np
 
 
+def ideal_work_of_liquefaction(fluid, T0, p):
+    """Minimum work to liquefy gas taken at ``T0`` [K] and ``p`` [Pa] to saturated liquid at ``p``.
+
+    ``W_ideal = T0 (s1 - sf) - (h1 - hf)`` [J/kg]: also the exergy of the liquid relative to
+    the gas at ambient conditions.
+
+    References
+    ----------
+    R. F. Barron, *Cryogenic Systems*, 2nd ed., Oxford University Press, 1985, sec. 3.1
+    and Table 3.1 (ideal work of liquefaction of common gases from 300 K and 1 atm).
+    """
+    gas = fluid.state_tp(T0, p)
+    liquid = fluid.saturated_liquid(p)
+    return T0 * (gas.s - liquid.s) - (gas.h - liquid.h)
+
+
 def compress_isothermal(fluid, inlet, p_out, T_out, efficiency, T0):
     """Compression with heat rejection to the surroundings, rated by isothermal efficiency.
 

@@ -195,10 +195,10 @@ def format_optimum(found):
     s = found["summary"]
     lines = [f"optimum for {found['goal']} ({found['evaluations']} evaluations, "
              f"{'converged' if found['converged'] else 'NOT converged'})"]
-    from cycle.sweep import _kind_of
+    from cycle.scenario import key_kind
 
     for key, value in found["vary"].items():
-        kind = _kind_of(key)
+        kind = key_kind(key)
         if kind == "pressure":
             lines.append(_line(key, value / 1e5, "bar", "{:.2f}"))
         elif kind in ("temperature", "temperature_difference"):

@@ -4,7 +4,7 @@ import base64
 import datetime
 import html
 
-from cycle.cli import CAUTIONS
+from cycle.safety import CAUTIONS
 
 _CSS = """
 body { font-family: 'DejaVu Sans', Arial, sans-serif; color: #222; margin: 2em auto; max-width: 72em;

@@ -210,11 +210,42 @@ _EXAMPLES = {
 }
 
 
-def _all_keys(schema, prefix=""):
+def all_keys(schema=None, prefix=""):
+    """Every key of ``schema`` (default :data:`SCHEMA`), dotted for nested keys."""
+    schema = SCHEMA if schema is None else schema
     for key, kind in schema.items():
         yield prefix + key
         if isinstance(kind, dict):
-            yield from _all_keys(kind, prefix + key + ".")
+            yield from all_keys(kind, prefix + key + ".")
+
+
+def key_kind(key, where="sweep."):
+    """Schema kind of a dotted scenario key (``compressor.stages`` -> ``"integer"``).
+
+    Parameters
+    ----------
+    key : str
+        Dotted scenario key.
+    where : str
+        How the caller names the key in messages: ``"sweep."`` gives ``sweep.{key}: ...``,
+        ``"--vary "`` gives ``--vary {key}: ...``.
+
+    Raises
+    ------
+    ScenarioError
+        If ``key`` is not a scenario key, or names a whole section.
+    """
+    node = SCHEMA
+    for part in key.split("."):
+        if not isinstance(node, dict) or part not in node:
+            close = difflib.get_close_matches(key, list(all_keys()), n=1, cutoff=0.5)
+            hint = f"; did you mean {close[0]}?" if close else ""
+            raise ScenarioError(f"{where}{key}: not a scenario key{hint}")
+        node = node[part]
+    if isinstance(node, dict):
+        raise ScenarioError(f"{where}{key}: a section cannot be {'swept' if where == 'sweep.' else 'varied'}; "
+                            f"use one of its keys, e.g. {key}.{next(iter(node))}")
+    return node
 
 
 def _check_keys(data, schema, prefix=""):
@@ -224,7 +255,7 @@ def _check_keys(data, schema, prefix=""):
     for key, value in data.items():
         full = prefix + str(key)
         if key not in schema:
-            candidates = list(_all_keys(schema, prefix)) if prefix else list(_all_keys(schema))
+            candidates = list(all_keys(schema, prefix)) if prefix else list(all_keys(schema))
             close = difflib.get_close_matches(full, candidates, n=1, cutoff=0.5)
             hint = f"; did you mean {close[0]}?" if close else f"; valid keys here: {', '.join(schema)}"
             raise ScenarioError(f"unknown key {full}{hint}")

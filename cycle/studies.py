@@ -4,7 +4,8 @@ import math
 
 from cycle.errors import NoLiquefactionError, ScenarioError
 from cycle.scenario import parse_scenario
-from cycle.sweep import _kind_of, run_point, set_key, split_sweep, to_si
+from cycle.scenario import key_kind
+from cycle.sweep import run_point, set_key, split_sweep, to_si
 from cycle.units import UnitError
 
 GOALS = {
@@ -20,7 +21,7 @@ _PENALTY = 1e12
 def _bounds(base, vary):
     out = []
     for key, low, high in vary:
-        kind = _kind_of(key)
+        kind = key_kind(key)
         if kind in ("gas", "text"):
             raise ScenarioError(f"--vary {key}: only numeric keys can be optimised; use lhsim compare for gases")
         try:

@@ -22,7 +22,7 @@ import os
 import pathlib
 
 from cycle.errors import NoLiquefactionError, ScenarioError
-from cycle.scenario import SCHEMA, parse_scenario
+from cycle.scenario import key_kind, parse_scenario
 from cycle.units import UnitError, parse_quantity
 
 STATUSES = ("ok", "no-liquid", "invalid", "failed")
@@ -39,29 +39,9 @@ def split_sweep(data):
     return data, data.pop("sweep", None)
 
 
-def _kind_of(key):
-    """Schema kind of a dotted scenario key, or raise ScenarioError naming it."""
-    node = SCHEMA
-    parts = key.split(".")
-    for k, part in enumerate(parts):
-        if not isinstance(node, dict) or part not in node:
-            import difflib
-
-            from cycle.scenario import _all_keys
-
-            close = difflib.get_close_matches(key, list(_all_keys(SCHEMA)), n=1, cutoff=0.5)
-            hint = f"; did you mean {close[0]}?" if close else ""
-            raise ScenarioError(f"sweep.{key}: not a scenario key{hint}")
-        node = node[part]
-    if isinstance(node, dict):
-        raise ScenarioError(f"sweep.{key}: a section cannot be swept; sweep one of its keys, e.g. "
-                            f"{key}.{next(iter(node))}")
-    return node
-
-
 def to_si(key, value):
     """A swept value as a column entry: SI number for quantities, text for names."""
-    kind = _kind_of(key)
+    kind = key_kind(key)
     if kind in ("gas", "text"):
         return str(value)
     if kind == "integer":
@@ -88,7 +68,7 @@ def _range_values(key, spec):
     steps = spec["steps"]
     if isinstance(steps, bool) or not isinstance(steps, int) or not 1 <= steps <= 100000:
         raise ScenarioError(f"sweep.{key}.steps must be a whole number from 1 to 100000, got {steps!r}")
-    kind = _kind_of(key)
+    kind = key_kind(key)
     if kind in ("gas", "text"):
         raise ScenarioError(f"sweep.{key}: a range needs a numeric key; give a list of values instead")
     try:
@@ -125,7 +105,7 @@ def sweep_axes(section):
     axes = {}
     for key, spec in section.items():
         key = str(key)
-        _kind_of(key)
+        key_kind(key)
         if isinstance(spec, dict):
             axes[key] = _range_values(key, spec)
         elif isinstance(spec, list) and spec:
