@@ -26,6 +26,7 @@ DIMENSIONS = {
 # Units a user may write in the style of the trade; pint would misread a few of them.
 _SPELLINGS = {
     "bara": "bar",
+    "psia": "psi",  # absolute psi; pint knows only psi (which is absolute too)
     "kg/hr": "kg/h",
     "l/h": "L/h",
     "l/hr": "L/h",
@@ -34,8 +35,13 @@ _SPELLINGS = {
 }
 
 
-# Gauge pressure spellings (refused: lhsim works in absolute pressure).
-_GAUGE = {"barg", "psig", "kpag", "mpag", "pag", "mbarg"}
+# Gauge pressure spellings (refused: lhsim works in absolute pressure), with the absolute
+# spelling to write instead once the atmospheric pressure is added.
+_GAUGE = {"barg": "bara", "psig": "psia", "kpag": "kPa", "mpag": "MPa", "pag": "Pa", "mbarg": "mbar"}
+# Temperature units as people write them that pint reads otherwise (C is the coulomb, F the farad).
+_TEMPERATURE_LOOKALIKES = {"C": "degC", "deg C": "degC", "oC": "degC", "F": "degF", "deg F": "degF", "oF": "degF"}
+# A power written as a digit after a letter (m3, ft3, cm2): pint wants m^3.
+_DIGIT_POWER = re.compile(r"(?<=[A-Za-z])([23])(?![\d.])")
 # A temperature difference written in an offset unit means the difference in that unit.
 _OFFSET_UNITS = {"degC": "delta_degC", "°C": "delta_degC", "celsius": "delta_degC", "degree_Celsius": "delta_degC",
                  "degF": "delta_degF", "°F": "delta_degF", "fahrenheit": "delta_degF",
@@ -92,7 +98,8 @@ def parse_quantity(value, dimension):
         raise UnitError(f"expected a finite number, got {value!r}")
     unit = _SPELLINGS.get(unit, unit)
     if unit.lower() in _GAUGE:
-        raise UnitError(f"gauge pressures are not accepted (give absolute pressure), got {value!r}")
+        raise UnitError(f"gauge pressures are not accepted (give absolute pressure), got {value!r}; add the "
+                        f"atmospheric pressure and write {_GAUGE[unit.lower()]}")
     dim, si = DIMENSIONS[dimension]
     if not unit:
         return number
@@ -104,17 +111,32 @@ def parse_quantity(value, dimension):
             unit = _OFFSET_UNITS[unit]
         quantity = ureg.Quantity(number, unit)
     except (pint.errors.UndefinedUnitError, AttributeError, ValueError, TypeError) as err:
-        raise UnitError(f"unknown unit {unit!r} in {value!r}") from err
+        raise UnitError(f"unknown unit {unit!r} in {value!r}{_hint(match.group(1), unit, dimension)}") from err
     if dim == "":
         if not quantity.dimensionless:
             raise UnitError(f"expected a plain number, got {value!r}")
         return float(quantity.to("dimensionless").magnitude)
     if quantity.dimensionality != ureg.get_dimensionality(dim):
-        raise UnitError(f"expected a {dimension.replace('_', ' ')} (for example in {_EXAMPLE[dimension]}), got {value!r}")
+        raise UnitError(f"expected a {dimension.replace('_', ' ')} (for example in {_EXAMPLE[dimension]}), "
+                        f"got {value!r}{_hint(match.group(1), unit, dimension)}")
     out = float(quantity.to(si).magnitude)
     if not math.isfinite(out):
         raise UnitError(f"expected a finite number, got {value!r}")
     return out
+
+
+def _hint(number, unit, dimension):
+    """A "did you mean" for a unit written the way people write it but pint reads otherwise."""
+    if dimension in ("temperature", "temperature_difference") and unit in _TEMPERATURE_LOOKALIKES:
+        return f" (pint does not read {unit!r} as a temperature); did you mean '{number} {_TEMPERATURE_LOOKALIKES[unit]}'?"
+    power = _DIGIT_POWER.sub(r"^\1", unit)
+    if power != unit:
+        try:
+            parse_quantity(f"{number} {power}", dimension)
+        except UnitError:
+            return ""
+        return f"; write powers with ^: did you mean '{number} {power}'?"
+    return ""
 
 
 _EXAMPLE = {
