@@ -261,6 +261,12 @@ class Precooler:
         p = self.spec.coolant_pressure
         return coolant.saturated_liquid(p), coolant.saturated_vapour(p)
 
+    def least_coolant_work(self):
+        """Least work per kg of coolant boiled off that the second law allows [J/kg]: the exergy
+        of the refrigeration the bath delivers, latent heat times (T0 / T_boil - 1)."""
+        liquid, vapour = self.coolant_states()
+        return processes.refrigeration_exergy(vapour.h - liquid.h, liquid.T, self.ambient_temperature)
+
     def supply(self, duty):
         """Cost of ``duty`` [J/kg compressed] of precooling (:class:`PrecoolingSupply`)."""
         spec, T0 = self.spec, self.ambient_temperature

@@ -33,6 +33,13 @@ from cycle.results import CycleResult, RecuperatorResult, SolveReport, StreamSta
 
 # Relative tolerance of the tear variable; property flashes are good to ~1e-10 in h.
 DUTY_RTOL = 1e-10
+# What "converged" means: the sizing quantity the user gave is reached to within this
+# (effectiveness absolute [-], minimum approach absolute [K], UA relative to the target [-]).
+UA_RTOL = 1e-6
+SIZING_TOLERANCE = {"effectiveness": 1e-9, "min_approach": 1e-6, "ua": UA_RTOL}
+# Streams closer than this [K] touch: below the resolution of the property data, the exchanger
+# is a perfect one and its UA is reported as unbounded (null).
+TOUCH_APPROACH = 1e-6
 
 
 # -- textbook relations -------------------------------------------------------------------
@@ -195,6 +202,12 @@ class Section:
 def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200):
     """Find the duty at which a recuperator meets its sizing.
 
+    The root-finder works on the duty, but the solve is judged on the quantity the user gave:
+    it is converged only where the achieved effectiveness, minimum approach or UA is within
+    :data:`SIZING_TOLERANCE` of the target.  Where the target lies beyond what the streams can
+    use (a UA so large that the streams would have to touch), the result is that of the
+    limiting, perfect exchanger and the report says by how much the target was missed.
+
     Parameters
     ----------
     section : Section
@@ -238,15 +251,15 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
         else:
             duty, root = brentq(residual, 0.0, Q_hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
                                 full_output=True, disp=False)
-        res = residual(duty)
+        achieved = section.effectiveness(duty)
     elif mode == "min_approach":
         target, unit = spec.min_approach, "K"
 
         def residual(duty):
             return section.profile(duty).min_approach - target
 
-        if target <= 1e-9 and residual(Q_hi) > -1e-6:  # the streams touch at the largest duty
-            duty = Q_hi
+        if target <= TOUCH_APPROACH and residual(Q_hi) > -SIZING_TOLERANCE["min_approach"]:
+            duty = Q_hi  # the streams touch at the largest duty
         else:
             if target >= section.hot_in.T - section.T_floor:
                 raise NoLiquefactionError(
@@ -260,22 +273,28 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
             else:
                 duty, root = brentq(residual, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
                                     full_output=True, disp=False)
-        res = residual(duty)
+        achieved = section.profile(duty).min_approach
     else:
         target, unit = spec.ua, "W/K"
-        duty, root = _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter)
-        res = flow_of(duty) * section.profile(duty).ua() - target
-        if root is None and res < -1e-6 * target:
-            note = (f"note: {key}.ua {target:g} W/K is more than these streams can use (the streams touch at "
-                    f"{res + target:.4g} W/K over {rec.zones} zones): the recuperator acts as a perfect one")
+        duty, root, achieved = _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter)
 
+    res = achieved - target
+    allowed = SIZING_TOLERANCE[mode] * (target if mode == "ua" else 1.0)
     profile = section.profile(duty)
-    if mode == "ua" and root is None and res < -1e-6 * target:
-        message = note
-    else:
+    if abs(res) <= allowed:
+        status = "met"
         message = root.flag if root is not None else "the first guess or the bracket end is the root"
+    elif profile.min_approach <= TOUCH_APPROACH or duty >= Q_hi * (1.0 - 1e-12):
+        status = "limit"
+        message = _limit_message(key, mode, target, achieved, res, profile, unit)
+    else:
+        status = "missed"
+        message = (f"{key}.{mode} reached {achieved:.6g} {unit} against the {target:g} {unit} asked for (off by "
+                   f"{res:+.3g} {unit}, more than the {allowed:.1g} {unit} allowed) after "
+                   f"{root.iterations if root is not None else 0} iterations"
+                   f"{'; the root-finder says: ' + root.flag if root is not None else ''}")
     report = SolveReport(
-        converged=bool(root.converged) if root is not None else True,
+        converged=status == "met" and (bool(root.converged) if root is not None else True),
         iterations=int(root.iterations) if root is not None else 0,
         function_calls=section.calls,
         residual=float(res),
@@ -283,8 +302,29 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
         tolerance=float(tol),
         message=message,
         tear_variable=f"{key} duty per kg of compressor flow [J/kg]",
+        target=float(target),
+        achieved=float(achieved),
+        residual_tolerance=float(allowed),
+        status=status,
     )
     return duty, profile, report
+
+
+def _limit_message(key, mode, target, achieved, res, profile, unit):
+    """Why a sizing target lies beyond what the streams can use, in words."""
+    k = profile.min_approach_index
+    last = len(profile.duty) - 1
+    where = ("at the warm end" if k == last else "at the cold end" if k == 0
+             else f"{profile.duty[k] / profile.duty[-1]:.0%} of the duty from the cold end")
+    if profile.min_approach <= TOUCH_APPROACH:
+        why = (f"at {achieved:.4g} {unit} the streams are already within {TOUCH_APPROACH:g} K of each other "
+               f"{where} (the resolution of the property data)")
+    else:
+        why = (f"at {achieved:.4g} {unit} the duty is already the largest the second law allows (pinch "
+               f"{profile.min_approach:.3g} K {where})")
+    return (f"{key}.{mode} {target:g} {unit} is more than these streams can use: {why}, so the "
+            f"{key.replace('_', ' ')} acts as a perfect one and more UA changes nothing; the target is missed "
+            f"by {res:+.4g} {unit} ({100.0 * res / target:+.1f} %) and the result is that of the perfect exchanger")
 
 
 def _bracket(f, guess, lo, hi, decreasing):
@@ -309,7 +349,7 @@ def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
 
     Where the streams touch or cross, UA is infinite; the residual there is a large finite
     stand-in (a thousand times the target), which Brent's method treats as any other value
-    of the right sign.
+    of the right sign.  Returns (duty, Brent's report or None, the UA reached [W/K]).
     """
     key = section.recuperator.key
     target = section.recuperator.spec.ua
@@ -319,8 +359,10 @@ def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
         m = flow_of(duty)
         if not math.isfinite(m):
             return stand_in
-        ua = section.profile(duty).ua()
-        return m * ua if math.isfinite(ua) else stand_in
+        prof = section.profile(duty)
+        if prof.min_approach <= TOUCH_APPROACH:  # touching, to the resolution of the properties
+            return stand_in
+        return m * prof.ua()
 
     def excess(duty):
         return ua_abs(duty) - target
@@ -360,22 +402,41 @@ def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
         guess = section.duty_from_ntu(target, flow_of(0.5 * Q_hi), Q_hi)
         lo, hi = _bracket(excess, guess, 0.0, Q_hi, decreasing=False)
     if lo == hi:
-        return lo, None
+        return lo, None, ua_abs(lo)
     if excess(lo) < 0 and excess(hi) < 0:
         # Even at the largest duty the streams allow, the UA asked for is not used up: the
         # exchanger is as good as a perfect one here.
-        return hi, None
-    return brentq(excess, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
-                  full_output=True, disp=False)
+        return hi, None, ua_abs(hi)
+    duty, root = brentq(excess, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter, full_output=True, disp=False)
+    if abs(excess(duty)) <= UA_RTOL * target:
+        return duty, root, ua_abs(duty)
+    # A tolerance on the duty does not bound the UA where it climbs steeply (the streams closing
+    # in, where UA grows like the log of the approach): bisect on, to the last representable duty
+    # or to where the streams touch.
+    a, b = (lo, hi) if excess(lo) < 0 else (hi, lo)
+    a, b = (duty, b) if excess(duty) < 0 else (a, duty)
+    for _ in range(200):
+        mid = 0.5 * (a + b)
+        if mid in (a, b):
+            break
+        f = excess(mid)
+        if abs(f) <= UA_RTOL * target:
+            return mid, root, ua_abs(mid)
+        a, b = (mid, b) if f < 0 else (a, mid)
+    if ua_abs(b) == stand_in:  # the streams touch at b: the result is the perfect exchanger's
+        return b, root, ua_abs(a)
+    return a, root, ua_abs(a)
 
 
 def _combined_report(reports):
     reports = list(reports)
     if len(reports) == 1:
         return reports[0]
-    worst = max(reports, key=lambda r: abs(r.residual))
+    worst = max(reports, key=lambda r: abs(r.residual) / r.residual_tolerance if r.residual_tolerance else 0.0)
     return SolveReport(
         converged=all(r.converged for r in reports),
+        status=next((r.status for r in reports if r.status != "met"), "met"),
+        target=worst.target, achieved=worst.achieved, residual_tolerance=worst.residual_tolerance,
         iterations=sum(r.iterations for r in reports),
         function_calls=sum(r.function_calls for r in reports),
         residual=worst.residual, residual_unit=worst.residual_unit,
@@ -573,7 +634,8 @@ class Liquefier:
         return RecuperatorResult(
             duty=duty, effectiveness=eps, critical_effectiveness=eps_crit, min_approach=prof.min_approach,
             min_approach_position=float(prof.duty[k] / duty) if duty else 0.0,
-            min_approach_hot_temperature=float(prof.hot_T[k]), ua_per_flow=prof.ua(), profile=prof)
+            min_approach_hot_temperature=float(prof.hot_T[k]),
+            ua_per_flow=prof.ua() if prof.min_approach > TOUCH_APPROACH else math.inf, profile=prof)
 
     def _exergy_loss(self, ins, outs, heat=()):
         """Exergy destroyed in a unit, T0 S_gen [J/kg of compressor flow].
@@ -606,13 +668,14 @@ class Liquefier:
         if throttle_outlet.quality is None:
             warn.append("the valve outlet is not two-phase: liquid comes only from the margin of heat leak")
         for name, report in reports.items():
-            if report.message.startswith("note: "):
-                warn.append(report.message[len("note: "):])
-            if not report.converged:
-                text = (f"recycle solve of the {name.replace('_', ' ')} did not converge after "
-                        f"{report.iterations} iterations ({report.message})")
-                warnings.warn(text, RecycleNotConvergedWarning, stacklevel=4)
-                warn.append(text)
+            if report.converged:
+                continue
+            if report.status == "limit":
+                text = report.message
+            else:
+                text = f"recycle solve of the {name.replace('_', ' ')} did not converge: {report.message}"
+            warnings.warn(text, RecycleNotConvergedWarning, stacklevel=4)
+            warn.append(text)
         states = [StreamState(k, name, st, flow) for k, (name, st, flow) in enumerate(streams, start=1)]
         return CycleResult(
             scenario=sc, liquid_yield=y, work_per_kg_compressed=comp_work,

@@ -47,11 +47,17 @@ class PrecooledLindeHampson(Liquefier):
                 raise ScenarioError(
                     f"precooling.temperature must be above the boiling temperature of the coolant "
                     f"{spec.coolant} at precooling.coolant_pressure ({liquid.T:.2f} K), got {spec.temperature:g} K")
+            least = self.precooler.least_coolant_work()
+            if spec.coolant_work is not None and spec.coolant_work < least:
+                raise ScenarioError(
+                    f"precooling.coolant_work must be at least {least / 1e3:.1f} kJ/kg, the exergy of the "
+                    f"refrigeration one kg of {spec.coolant} delivers as it boils at {liquid.T:.2f} K (latent heat "
+                    f"times (T0 / T_boil - 1)): less would make work from nothing; got {spec.coolant_work / 1e3:g} kJ/kg")
         elif spec.refrigerator_cop is not None:
             limit = carnot_cop(spec.temperature, T0)
-            if spec.refrigerator_cop >= limit:
+            if spec.refrigerator_cop > limit * (1.0 + 1e-12):
                 raise ScenarioError(
-                    f"precooling.refrigerator_cop must be below the Carnot value {limit:.4g} between "
+                    f"precooling.refrigerator_cop must be at most the Carnot value {limit:.4g} between "
                     f"precooling.temperature and ambient_temperature, got {spec.refrigerator_cop:g}")
 
     def _solve(self, xtol, maxiter):

@@ -1,5 +1,8 @@
 """Plain-text views of results, for people at a terminal."""
 
+# Widest line of the design-point text [characters].
+WIDTH = 100
+
 
 def _line(label, value, unit="", fmt="{:.4g}"):
     if value is None:
@@ -96,15 +99,42 @@ def format_result(result):
             _line("cold-box heat leak", s["heat_leak_W"], "W", "{:.3g}"),
         ]
     out += ["", "Where the work goes (exergy, per kg of liquid)", format_exergy(result)]
-    sol = result.solve
-    out += ["", "Solve",
-            f"  recycle {'converged' if sol.converged else 'NOT converged'} in {sol.iterations} iterations "
-            f"({sol.function_calls} evaluations), residual {sol.residual:.2e} {sol.residual_unit}; "
-            f"energy balance residual {s['energy_balance_residual']:.1e} of the work"]
+    import textwrap
+
+    out += ["", "Solve"] + [textwrap.fill(line, WIDTH, initial_indent="  ", subsequent_indent="    ")
+                            for line in solve_lines(result)]
     out += ["", "Streams (flow per kg of compressor flow)", _state_table(result)]
     if result.warnings:
         out += ["", "Warnings"] + [f"  - {w}" for w in result.warnings]
     return "\n".join(out)
+
+
+def solve_lines(result):
+    """How each recuperator's recycle solve went, in words: one line each, then the energy balance."""
+    lines = []
+    for name, rep in result.sections.items():
+        label = name.replace("_", " ")
+        unit = "" if rep.residual_unit == "-" else f" {rep.residual_unit}"
+        if rep.status == "met" and rep.converged:
+            lines.append(f"{label}: converged in {rep.iterations} iterations ({rep.function_calls} evaluations); "
+                         f"target {rep.target:.6g}{unit}, residual {_number(rep.residual, '{:.1e}')}{unit} "
+                         f"(allowed {rep.residual_tolerance:.0e}{unit})")
+        elif rep.status == "limit":
+            lines.append(f"{label}: target not reached, {rep.target:.6g}{unit} asked, {rep.achieved:.6g}{unit} is all "
+                         f"the streams can use (the result is the perfect exchanger's; see Warnings)")
+        else:
+            lines.append(f"{label}: NOT converged after {rep.iterations} iterations: {rep.achieved:.6g}{unit} against "
+                         f"{rep.target:.6g}{unit} asked (see Warnings)")
+    lines.append(f"energy balance of the whole plant closes to {abs(result.energy_balance_residual):.0e} of the work")
+    return lines
+
+
+def _number(value, fmt):
+    """``fmt`` applied to ``value``, without the sign of a value that rounds to zero."""
+    text = fmt.format(value)
+    if text.startswith("-") and not any(c in "123456789" for c in text.split("e")[0]):
+        text = text[1:]
+    return text
 
 
 def format_exergy(result):

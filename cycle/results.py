@@ -20,13 +20,23 @@ class SolveReport:
         Iterations of the root-finder on the tear variable.
     function_calls : int
     residual : float
-        Residual of the sizing equation at the solution, in ``residual_unit``.
+        Achieved minus target of the sizing quantity the user gave (effectiveness, minimum
+        approach or UA), in ``residual_unit``.
     residual_unit : str
     tolerance : float
         Absolute tolerance on the tear variable [J/kg of compressor flow].
     tear_variable : str
     method : str
     message : str
+    target : float
+        The sizing quantity asked for, in ``residual_unit``.
+    achieved : float
+        The sizing quantity reached, in ``residual_unit``.
+    residual_tolerance : float
+        Largest ``|residual|`` that counts as converged, in ``residual_unit``.
+    status : str
+        ``met`` (converged), ``limit`` (the target lies beyond what the streams can use; the
+        result is that of the limiting, perfect exchanger) or ``missed`` (the solve failed).
     """
 
     converged: bool
@@ -38,6 +48,10 @@ class SolveReport:
     tear_variable: str = "recuperator duty per kg of compressor flow [J/kg]"
     method: str = "brentq"
     message: str = ""
+    target: float = float("nan")
+    achieved: float = float("nan")
+    residual_tolerance: float = float("nan")
+    status: str = "met"
 
     def to_dict(self):
         return {k: getattr(self, k) for k in self.__dataclass_fields__}

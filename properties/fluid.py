@@ -16,15 +16,17 @@ from CoolProp import CoolProp as CP
 
 from properties.errors import PropertyRangeError
 from properties.fluids import resolve_fluid_name
-from properties.state import State
+from properties.state import State, two_phase_label
 
+# Phase names in the trade's plain words (see docs/glossary.md, "phase"): "gas" above the
+# critical temperature and below the critical pressure, "vapour" below the critical temperature.
 _PHASES = {
     CP.iphase_liquid: "liquid",
-    CP.iphase_gas: "gas",
+    CP.iphase_gas: "vapour",
     CP.iphase_twophase: "two-phase",
-    CP.iphase_supercritical: "supercritical",
-    CP.iphase_supercritical_gas: "supercritical gas",
-    CP.iphase_supercritical_liquid: "supercritical liquid",
+    CP.iphase_supercritical: "supercritical fluid",
+    CP.iphase_supercritical_gas: "gas",
+    CP.iphase_supercritical_liquid: "compressed liquid",
     CP.iphase_critical_point: "critical point",
 }
 
@@ -134,6 +136,8 @@ class Fluid:
         q = st.Q()
         phase = _PHASES.get(st.phase(), "unknown")
         quality = float(q) if phase == "two-phase" and 0.0 <= q <= 1.0 else None
+        if quality is not None:
+            phase = two_phase_label(quality)
         return State(self.name, st.T(), float(p) if p is not None else st.p(), st.hmass(), st.smass(),
                      st.rhomass(), quality, phase)
 
@@ -200,7 +204,7 @@ class Fluid:
             cached = self._snapshot(p)
             if cached.quality is None:  # report saturation states as such
                 cached = State(self.name, cached.T, cached.p, cached.h, cached.s, cached.density,
-                               float(quality), "two-phase")
+                               float(quality), two_phase_label(float(quality)))
             if len(self._sat_cache) > 4096:
                 self._sat_cache.clear()
             self._sat_cache[key] = cached

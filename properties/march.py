@@ -15,7 +15,7 @@ import math
 
 from CoolProp import CoolProp as CP
 
-from properties.state import State
+from properties.state import State, two_phase_label
 
 _MAX_STEPS = 25
 # Converged when p is met to 1e-11 relative and h to 1e-7 J/kg (about 1e-10 K at cp ~ 1 kJ/(kg K)).
@@ -79,7 +79,7 @@ class PhMarch:
                 if not full:
                     return T_b, None, q
                 rho = 1.0 / ((1.0 - q) / (D_l * self.M) + q / (D_v * self.M))
-                return State(fl.name, T_b, float(p), float(h), s_l + q * (s_v - s_l), rho, float(q), "two-phase")
+                return State(fl.name, T_b, float(p), float(h), s_l + q * (s_v - s_l), rho, float(q), two_phase_label(q))
             side = "liquid" if h < h_l else "vapour"
             if guess is None or (side == "liquid" and guess[0] >= T_b) or (side == "vapour" and guess[0] <= T_d):
                 guess = (T_b * (1 - 1e-4), D_l) if side == "liquid" else (T_d * (1 + 1e-4), D_v)

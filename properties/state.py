@@ -25,8 +25,11 @@ class State:
     quality : float or None
         Vapour mass fraction for a two-phase or saturated state, None in a single phase.
     phase : str
-        One of ``liquid``, ``gas``, ``two-phase``, ``supercritical``,
-        ``supercritical gas``, ``supercritical liquid``, ``critical point``.
+        ``liquid`` (below the critical temperature and pressure, above the saturation pressure),
+        ``vapour`` (below the critical temperature and the saturation pressure), ``two-phase``,
+        ``gas`` (above the critical temperature, below the critical pressure), ``supercritical
+        fluid`` (above both), ``compressed liquid`` (above the critical pressure, below the
+        critical temperature) or ``critical point``.
     """
 
     fluid: str
@@ -41,3 +44,8 @@ class State:
     def to_dict(self):
         """Return the state as a plain dictionary of SI numbers."""
         return asdict(self)
+
+
+def two_phase_label(quality):
+    """Phase name of a state on or inside the saturation dome with vapour fraction ``quality``."""
+    return "saturated liquid" if quality == 0.0 else "saturated vapour" if quality == 1.0 else "two-phase"

@@ -88,7 +88,7 @@ def test_precooling_refrigerator_work():
                                           precooling={"temperature": T_pc, "refrigerator_carnot_fraction": 0.4}))
     cop = 0.4 * T_pc / (300.0 - T_pc)
     assert by_fraction.precooling_work_per_kg_compressed == pytest.approx(by_fraction.precooler_duty / cop, rel=1e-12)
-    with pytest.raises(ScenarioError, match="refrigerator_cop must be below the Carnot value"):
+    with pytest.raises(ScenarioError, match="refrigerator_cop must be at most the Carnot value"):
         solve_scenario(scenario(precooling={"temperature": T_pc, "refrigerator_cop": carnot_cop(T_pc, 300.0) + 0.1}))
 
 
