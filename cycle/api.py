@@ -47,6 +47,12 @@ def run(scenario):
 def sweep(source, axes=None, out=None, workers=1, dask=None, mode=None, overwrite=True):
     """Run a sweep and return its results as a DataFrame (one row per point).
 
+    The frame holds the columns of the results file, in its order (swept quantities in the
+    units of the summary keys, the unit at the end of the name: ``high_pressure_bar``), and then,
+    for each swept quantity, one more column under the bare key in SI (``high_pressure`` in
+    Pa, ``production.liquid_rate`` in kg/s or m^3/s), so code can pass values straight back into
+    a scenario mapping.
+
     Parameters
     ----------
     source : str, os.PathLike or dict
@@ -77,8 +83,26 @@ def sweep(source, axes=None, out=None, workers=1, dask=None, mode=None, overwrit
         import pandas as pd
 
         if path.suffix.lower() == ".parquet":
-            return pd.read_parquet(path)
-        return pd.read_csv(path, keep_default_na=False, na_values=[""], dtype={"message": str, "status": str})
+            frame = pd.read_parquet(path)
+        else:
+            frame = pd.read_csv(path, keep_default_na=False, na_values=[""], dtype={"message": str, "status": str})
+    return with_si_columns(frame)
+
+
+def with_si_columns(frame):
+    """A sweep results frame with, after its own columns, each swept quantity in SI under its
+    bare key (``high_pressure_bar`` -> ``high_pressure`` [Pa])."""
+    from cycle.sweep import parse_column, si_value
+
+    cols = list(frame.columns)
+    swept = cols[cols.index("point") + 1: cols.index("status")] if "point" in cols and "status" in cols else []
+    frame = frame.copy()
+    for column in swept:
+        parsed = parse_column(str(column))
+        if parsed is not None and parsed[1] is not None and parsed[0] not in frame.columns:
+            key, dimension = parsed
+            frame[key] = si_value(frame[column].astype(float), dimension)
+    return frame
 
 
 def compare(source, gases, at_optimum=False, between=None):

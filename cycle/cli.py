@@ -230,7 +230,11 @@ def _cmd_plot(args):
         else:
             frame = pd.read_csv(path, keep_default_na=False, na_values=[""], dtype={"message": str})
     except Exception as err:  # any unreadable file: say so in one line
-        return _fail(f"results file {path} could not be read as a table: {err}")
+        reason = (str(err).strip().splitlines() or [type(err).__name__])[0]
+        return _fail(f"results file {path} could not be read as a table: {reason}")
+    if not {"point", "status"} <= set(map(str, frame.columns)):
+        return _fail(f"{path} is not an lhsim results file (it has no point and status columns); "
+                     f"make one with lhsim sweep")
     if args.out and not args.out.lower().endswith((".png", ".svg")):
         return _fail(f"--out must end in .png or .svg, got {args.out}")
     from cycle.plots import sweep_chart
@@ -289,8 +293,8 @@ def _cmd_sweep(args):
             return 130
     except ScenarioError as err:
         return _fail(str(err))
-    print(f"{outcome['points']} points in {outcome['path']} ({outcome['computed']} computed now, "
-          f"{outcome['failed']} not ok)", file=sys.stderr)
+    print(f"{outcome['points']} points in {outcome['path']} ({outcome['computed']} computed now; "
+          f"{outcome['no_liquid']} made no liquid, {outcome['failed']} failed or invalid)", file=sys.stderr)
     return 0
 
 

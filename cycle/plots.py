@@ -100,7 +100,8 @@ def _edges(names):
         return name in names
 
     edges = []
-    comp = [n for n in names if "discharge" in n or "intercooler" in n or n.startswith("compressor suction")
+    comp = [n for n in names if "discharge" in n or "intercooler" in n or "(isothermal model" in n
+            or n.startswith("compressor suction")
             or n.startswith("intermediate mixing")]
     for a, b in zip(comp, comp[1:]):
         if b.startswith("intermediate mixing"):
@@ -302,44 +303,84 @@ def loss_chart(result):
 
 # -- sweep charts -------------------------------------------------------------------------
 
-# Columns in SI that read better in another unit: key -> (factor, unit).
-_DISPLAY = {"pressure": (1e-5, "bar"), "temperature": (1.0, "K"), "temperature_difference": (1.0, "K"),
-            "power": (1.0, "W"), "mass_flow": (3600.0, "kg/h"), "thermal_conductance": (1.0, "W/K"),
-            "specific_energy": (1e-3, "kJ/kg")}
 _SUFFIX_UNITS = [("_kJ_per_kg_compressed", "kJ/kg of compressor flow"), ("_kJ_per_kg_liquid", "kJ/kg of liquid"),
                  ("_W_per_K_per_kg_per_s", "W/K per kg/s"), ("_W_per_K", "W/K"), ("_kg_per_kg_liquid", "kg/kg of liquid"),
                  ("_kg_per_h", "kg/h"), ("_L_per_h", "L/h"), ("_kW", "kW"), ("_W", "W"), ("_K", "K")]
+# Legend entries a sweep chart shows at most; beyond, lines are summarised by colour and style.
+LEGEND_ENTRIES = 8
+_MARKERS = ["o", "s", "^", "D", "v", "P", "X", "*"]
+_STYLES = ["-", "--", ":", "-."]
+
+
+def _words(key):
+    return key.replace("_", " ").replace(".", ": ")
+
+
+def _quantity(column):
+    """(words, unit as printed or "-" or None for names, factor to apply) of a results column."""
+    from cycle.scenario import key_kind
+    from cycle.sweep import COLUMN_UNITS, parse_column
+
+    if column in ("liquid_yield", "figure_of_merit", "energy_balance_residual") or column.endswith(
+            ("_effectiveness", "_position", "_quality")):
+        return _words(column), "-", 1.0
+    swept = parse_column(column)
+    if swept is not None:
+        key, dimension = swept
+        if dimension is not None:
+            return _words(key), COLUMN_UNITS[dimension][1], 1.0
+        return _words(key), (None if key_kind(key) in ("gas", "text") else "-"), 1.0
+    for suffix, unit in _SUFFIX_UNITS:
+        if column.endswith(suffix):
+            return _words(column[: -len(suffix)]), unit, 1.0
+    try:
+        kind = key_kind(column)
+    except Exception:
+        return _words(column), None, 1.0
+    kind = kind[0] if isinstance(kind, tuple) else kind
+    if kind in COLUMN_UNITS:  # a swept quantity in SI under its bare key (the Python interface's frames)
+        _, unit, times, over = COLUMN_UNITS[kind]
+        return _words(column), unit, times / over
+    return _words(column), "-", 1.0
 
 
 def axis_label(key):
-    """Quantity and unit for a column: swept keys from the scenario schema, summary keys from
-    the unit their name ends with (as in the glossary).  Returns (label, factor to apply)."""
-    from cycle.scenario import key_kind
+    """Quantity and unit for a column: swept keys by the unit their column name ends with (or
+    from the scenario schema for a bare key in SI), summary keys from the unit their name ends
+    with (as in the glossary).  Returns (label, factor to apply)."""
+    words, unit, factor = _quantity(key)
+    return (f"{words} [{unit}]" if unit else words), factor
 
-    if key in ("liquid_yield", "figure_of_merit", "energy_balance_residual") or key.endswith(
-            ("_effectiveness", "_position", "_quality")):
-        return f"{key.replace('_', ' ')} [-]", 1.0
-    for suffix, unit in _SUFFIX_UNITS:
-        if key.endswith(suffix):
-            return f"{key[: -len(suffix)].replace('_', ' ')} [{unit}]", 1.0
+
+def legend_text(column, value):
+    """One swept value as a legend shows it: quantity, value and the unit of the axes."""
+    words, unit, factor = _quantity(column)
+    if unit is None:
+        return str(value) if column == "gas" else f"{words} {value}"
     try:
-        kind = key_kind(key)
-    except Exception:
-        return key.replace("_", " "), 1.0
-    kind = kind[0] if isinstance(kind, tuple) else kind
-    if kind in _DISPLAY:
-        factor, unit = _DISPLAY[kind]
-        return f"{key.replace('_', ' ').replace('.', ': ')} [{unit}]", factor
-    return f"{key.replace('_', ' ').replace('.', ': ')} [-]", 1.0
+        number = f"{float(value) * factor:.6g}"
+    except (TypeError, ValueError):
+        return f"{words} {value}"
+    return f"{words} {number}" + ("" if unit == "-" else f" {unit}")
 
 
 def sweep_data(frame, x, y, by=None):
-    """Lines per category and the points that made no liquid or failed."""
-    from cycle.errors import ScenarioError
+    """Lines per category and the points that made no liquid or failed.
 
+    ``x``, ``y`` and ``by`` are column names or, for swept quantities, their bare keys
+    (``high_pressure`` finds the column ``high_pressure_bar``).
+    """
+    from cycle.errors import ScenarioError
+    from cycle.sweep import find_column
+
+    found = []
     for key in [x, y] + ([by] if by else []):
-        if key not in frame.columns:
+        column = find_column(frame.columns, key)
+        if column is None:
             raise ScenarioError(f"column {key} is not in the results; columns: {', '.join(map(str, frame.columns))}")
+        found.append(column)
+    x, y = found[0], found[1]
+    by = found[2] if by else None
     x_label, fx = axis_label(x)
     y_label, fy = axis_label(y)
     # Other swept keys (the columns between "point" and "status" of a sweep file) would zigzag a
@@ -348,53 +389,132 @@ def sweep_data(frame, x, y, by=None):
     swept = cols[cols.index("point") + 1: cols.index("status")] if "point" in cols and "status" in cols else []
     keys = ([by] if by else []) + [k for k in swept if k not in (x, by) and frame[k].nunique() > 1]
     if keys:
-        groups = [(", ".join(f"{k} = {v}" for k, v in zip(keys, value if isinstance(value, tuple) else (value,))), part)
-                  for value, part in frame.groupby(keys if len(keys) > 1 else keys[0], sort=False)]
+        groups = []
+        for value, part in frame.groupby(keys if len(keys) > 1 else keys[0], sort=False):
+            value = value if isinstance(value, tuple) else (value,)
+            parts = [legend_text(k, v) for k, v in zip(keys, value)]
+            groups.append((parts, part))
     else:
         groups = [(None, frame)]
-    lines, misses = [], []
-    for value, part in groups:
+    lines, misses, heads, tails = [], [], [], []
+    for parts, part in groups:
         part = part.sort_values(x)
         ok = part[part["status"] == "ok"] if "status" in part else part
         bad = part[part["status"] != "ok"] if "status" in part else part.iloc[0:0]
-        lines.append((value, ok[x].to_numpy(float) * fx, ok[y].to_numpy(float) * fy))
-        misses.append((value, bad[x].to_numpy(float) * fx, list(bad["status"]) if len(bad) else []))
-    return {"x_label": x_label, "y_label": y_label, "lines": lines, "misses": misses, "by": by, "keys": keys}
+        label = ", ".join(parts) if parts else None
+        heads.append(parts[0] if parts else None)
+        tails.append(", ".join(parts[1:]) if parts and len(parts) > 1 else None)
+        lines.append((label, ok[x].to_numpy(float) * fx, ok[y].to_numpy(float) * fy))
+        misses.append((label, bad[x].to_numpy(float) * fx, list(bad["status"]) if len(bad) else []))
+    return {"x": x, "y": y, "x_label": x_label, "y_label": y_label, "lines": lines, "misses": misses,
+            "by": by, "keys": keys, "heads": heads, "tails": tails}
+
+
+def _unique(items):
+    out = []
+    for item in items:
+        if item not in out:
+            out.append(item)
+    return out
 
 
 def sweep_chart(frame, x, y, by=None):
-    """``y`` against ``x`` from a sweep results table, one line per value of ``by``; points
-    that made no liquid or failed are marked along the bottom."""
+    """``y`` against ``x`` from a sweep results table, one line per value of ``by`` (and per
+    combination of the other swept keys); points that made no liquid or failed are marked along
+    the bottom.
+
+    The legend sits outside the data, to the right, with at most :data:`LEGEND_ENTRIES` entries:
+    one per line while they fit; beyond, one per colour (the first key; a numeric key with more
+    values than the palette has colours gets a colour bar instead) and one per line style (the
+    other keys; summarised in one entry when there are more combinations than styles).
+    """
+    import matplotlib.lines as mlines
+
     plt = _pyplot()
     data = sweep_data(frame, x, y, by)
     fig, ax = plt.subplots(figsize=(7.5, 5.0))
-    markers = ["o", "s", "^", "D", "v", "P", "X", "*"]
-    styles = ["-", "--", ":", "-."]
-    first = data["keys"][0] if data["keys"] else None
-    firsts = []
-    for value, _, _ in data["lines"]:
-        head = value.split(", ")[0] if value else None
-        if head not in firsts:
-            firsts.append(head)
-    seen = {}
-    for k, ((value, xs, ys), (_, bx, statuses)) in enumerate(zip(data["lines"], data["misses"])):
-        # Colour by the first key (the --by column), line style by the others.
-        head = value.split(", ")[0] if value else None
-        colour = PALETTE[firsts.index(head) % len(PALETTE)]
-        style = styles[seen.get(head, 0) % len(styles)]
-        seen[head] = seen.get(head, 0) + 1
-        label = value if first else None
+    heads, tails = _unique(data["heads"]), _unique(data["tails"])
+    head_key = data["keys"][0] if data["keys"] else None
+    numeric_heads = head_key is not None and _quantity(head_key)[1] is not None
+    colourbar = None
+    if len(heads) > len(PALETTE) and numeric_heads:
+        from matplotlib import cm, colors
+
+        values = sorted(frame[head_key].dropna().unique())
+        norm = colors.Normalize(vmin=float(values[0]), vmax=float(values[-1]))
+        cmap = plt.get_cmap("viridis")
+        by_head = {legend_text(head_key, v): cmap(norm(float(v))) for v in values}
+        colour_of = by_head.get
+        colourbar = cm.ScalarMappable(norm=norm, cmap=cmap)
+    else:
+        def colour_of(head):
+            return PALETTE[heads.index(head) % len(PALETTE)]
+    data["colours"], data["styles"] = [], []
+    statuses = set()
+    for (value, xs, ys), (_, bx, bad), head, tail in zip(data["lines"], data["misses"], data["heads"], data["tails"]):
+        colour = colour_of(head)
+        style = _STYLES[tails.index(tail) % len(_STYLES)]
+        marker = _MARKERS[heads.index(head) % len(_MARKERS)] if colourbar is None else "o"
+        data["colours"].append(colour)
+        data["styles"].append(style)
         if len(xs):
-            ax.plot(xs, ys, marker=markers[firsts.index(head) % len(markers)], ms=4, color=colour, lw=1.8,
-                    ls=style, label=label)
-        if len(bx):
-            ax.plot(bx, np.zeros_like(bx), "x", color=colour, ms=7, mew=1.6, transform=ax.get_xaxis_transform(),
-                    clip_on=False, label=(f"{label}: no liquid or failed" if label else "no liquid or failed"))
+            ax.plot(xs, ys, marker=marker, ms=4, color=colour, lw=1.8, ls=style)
+        for status, mark in (("no-liquid", "x"), ("other", "^")):
+            at = [xk for xk, sk in zip(bx, bad) if (sk == "no-liquid") == (status == "no-liquid")]
+            if at:
+                statuses.add(status)
+                ax.plot(at, np.zeros(len(at)), mark, color=colour, ms=7, mew=1.6, mfc="none",
+                        transform=ax.get_xaxis_transform(), clip_on=False)
+    entries = []  # (handle, label)
+    for status, mark, text in (("no-liquid", "x", "no liquid (on the axis)"),
+                               ("other", "^", "failed or invalid (on the axis)")):
+        if status in statuses:
+            entries.append((mlines.Line2D([], [], color=INK, marker=mark, ls="none", mfc="none", mew=1.4), text))
+    budget = LEGEND_ENTRIES - len(entries)
+    lines = []
+    if head_key is not None and len(data["lines"]) <= budget:
+        for (value, _, _), colour, style, head in zip(data["lines"], data["colours"], data["styles"], data["heads"]):
+            marker = _MARKERS[heads.index(head) % len(_MARKERS)] if colourbar is None else "o"
+            lines.append((mlines.Line2D([], [], color=colour, ls=style, marker=marker, ms=4, lw=1.8), value))
+    elif head_key is not None:
+        # Colours first (the --by key), then line styles in what room is left.
+        need_styles = len(tails) > 1
+        room = budget - (1 if need_styles else 0)
+        colour_entries = []
+        if colourbar is None:
+            shown = heads if len(heads) <= room else heads[: room - 1]
+            colour_entries = [(mlines.Line2D([], [], color=colour_of(h), marker=_MARKERS[k % len(_MARKERS)], ms=4,
+                                             lw=1.8), h) for k, h in enumerate(shown)]
+            if len(shown) < len(heads):
+                repeat = " (colours repeat)" if len(heads) > len(PALETTE) else ""
+                colour_entries.append((mlines.Line2D([], [], color="none"),
+                                       f"and {len(heads) - len(shown)} more{repeat}"))
+        style_entries = []
+        if need_styles:
+            if len(tails) <= min(len(_STYLES), budget - len(colour_entries)):
+                style_entries = [(mlines.Line2D([], [], color=INK, ls=_STYLES[k], lw=1.4), tail)
+                                 for k, tail in enumerate(tails)]
+            else:
+                others = [_quantity(k)[0] for k in data["keys"][1:]]
+                what = (f"value of {others[0]}" if len(others) == 1
+                        else f"combination of {', '.join(others[:-1])} and {others[-1]}")
+                style_entries = [(mlines.Line2D([], [], color=INK, ls="--", lw=1.4),
+                                  f"{len(tails)} lines per colour, one per {what}")]
+        lines = colour_entries + style_entries
+    entries = lines + entries
+    data["legend"] = [label for _, label in entries]
+    if entries:  # room for the legend beside the data, not taken from it
+        widest = max(len(label) for label in data["legend"])
+        fig.set_size_inches(min(7.5 + 0.065 * widest + 0.6, 12.5), 5.0)
+    if colourbar is not None:
+        bar = fig.colorbar(colourbar, ax=ax, location="bottom", pad=0.16, fraction=0.05, aspect=40)
+        bar.set_label(axis_label(head_key)[0])
+    if entries:
+        ax.legend([h for h, _ in entries], [lab for _, lab in entries], loc="upper left",
+                  bbox_to_anchor=(1.02, 1.0), borderaxespad=0.0, fontsize=8)
     ax.set_xlabel(data["x_label"])
     ax.set_ylabel(data["y_label"])
     ax.set_title(f"{data['y_label'].split(' [')[0]} against {data['x_label'].split(' [')[0]}")
-    if first or any(len(m[1]) for m in data["misses"]):
-        ax.legend(fontsize=7 if len(data["lines"]) > 4 else 8)
     fig.tight_layout()
     return fig, data
 

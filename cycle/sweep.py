@@ -8,7 +8,12 @@ Results reach the output file in small batches as points finish.  Running the sa
 again computes only the points missing from the file; a partly written last line is dropped
 and redone; when all points are in, the file is rewritten sorted by point, so that it equals
 an uninterrupted run.  A sidecar ``<output>.lhsim.json`` holds the fingerprint of the scenario
-that made the file; a different scenario is refused unless ``overwrite`` is given.
+that made the file and the file format; a different scenario, or a file of an older format, is
+refused unless ``overwrite`` is given.
+
+Swept quantities are written in the units of the summary keys, with the unit at the end of the
+column name (:func:`swept_column`: ``high_pressure_bar``, ``ambient_temperature_K``,
+``production.liquid_rate_L_per_h``); dimensionless keys, whole numbers and names keep the key.
 """
 
 import copy
@@ -27,6 +32,24 @@ from cycle.units import UnitError, parse_quantity
 
 STATUSES = ("ok", "no-liquid", "invalid", "failed")
 _RANGE_KEYS = {"from", "to", "steps", "spacing"}
+# Format of results files: 1 wrote swept quantities in SI under the bare key; 2 writes them in
+# the units below, the unit at the end of the column name.
+RESULTS_FORMAT = 2
+
+# The unit a swept quantity's column is written in, as the summary keys name theirs:
+# dimension -> (column-name suffix, unit as printed, multiplier, divisor): the column value is
+# the SI value times the multiplier over the divisor (two exact numbers, so that a value and
+# its way back are each rounded once).
+COLUMN_UNITS = {
+    "pressure": ("bar", "bar", 1.0, 1e5),
+    "temperature": ("K", "K", 1.0, 1.0),
+    "temperature_difference": ("K", "K", 1.0, 1.0),
+    "power": ("W", "W", 1.0, 1.0),
+    "mass_flow": ("kg_per_h", "kg/h", 3600.0, 1.0),
+    "volume_flow": ("L_per_h", "L/h", 3.6e6, 1.0),
+    "thermal_conductance": ("W_per_K", "W/K", 1.0, 1.0),
+    "specific_energy": ("kJ_per_kg", "kJ/kg", 1.0, 1e3),
+}
 
 
 # -- the sweep section --------------------------------------------------------------------
@@ -39,22 +62,113 @@ def split_sweep(data):
     return data, data.pop("sweep", None)
 
 
-def to_si(key, value):
-    """A swept value as a column entry: SI number for quantities, text for names."""
-    kind = key_kind(key)
+def to_si(key, value, where="sweep."):
+    """A swept value in SI: a number for quantities, text for names."""
+    return _si_and_dimension(key, value, where)[0]
+
+
+def dimension_of(key, value, where="sweep."):
+    """The dimension (a key of :data:`COLUMN_UNITS`) ``value`` has as a value of ``key``;
+    None for dimensionless keys, whole numbers and names."""
+    return _si_and_dimension(key, value, where)[1]
+
+
+def _si_and_dimension(key, value, where):
+    kind = key_kind(key, where=where)
     if kind in ("gas", "text"):
-        return str(value)
+        return str(value), None
     if kind == "integer":
-        return int(value)
+        return int(value), None
     if kind == "number":
-        return parse_quantity(value, "dimensionless")
+        return parse_quantity(value, "dimensionless"), None
     kinds = kind if isinstance(kind, tuple) else (kind,)
+    errors = []
     for dimension in kinds:
         try:
-            return parse_quantity(value, dimension)
-        except UnitError:
-            continue
+            return parse_quantity(value, dimension), dimension
+        except UnitError as err:
+            errors.append(err)
+    if len(kinds) == 1:
+        raise errors[0]
     raise UnitError(f"expected a {' or '.join(k.replace('_', ' ') for k in kinds)}, got {value!r}")
+
+
+def swept_column(key, dimension):
+    """Column name of a swept key whose values have ``dimension``: the key with the unit of
+    :data:`COLUMN_UNITS` at the end (``high_pressure`` -> ``high_pressure_bar``); the key
+    itself for a dimension of None."""
+    return key if dimension is None else f"{key}_{COLUMN_UNITS[dimension][0]}"
+
+
+def column_value(value, dimension):
+    """An SI value in its column's unit (names and dimensionless numbers unchanged)."""
+    if dimension is None:
+        return value
+    _, _, times, over = COLUMN_UNITS[dimension]
+    return value * times / over
+
+
+def si_value(value, dimension):
+    """A column value back in SI (the inverse of :func:`column_value`)."""
+    if dimension is None:
+        return value
+    _, _, times, over = COLUMN_UNITS[dimension]
+    return value * over / times
+
+
+def parse_column(column):
+    """(scenario key, dimension) of a swept-key column name, or None for any other column."""
+    for dimension, (suffix, *_) in COLUMN_UNITS.items():
+        if column.endswith("_" + suffix):
+            key = column[: -len(suffix) - 1]
+            try:
+                kind = key_kind(key)
+            except ScenarioError:
+                continue
+            if dimension in (kind if isinstance(kind, tuple) else (kind,)):
+                return key, dimension
+    try:
+        kind = key_kind(column)
+    except ScenarioError:
+        return None
+    return (column, None) if kind in ("gas", "text", "integer", "number") else None
+
+
+def find_column(columns, key):
+    """The column of ``columns`` that holds ``key``: the key itself, or a swept quantity's
+    column with its unit (``high_pressure`` finds ``high_pressure_bar``); None if neither."""
+    columns = [str(c) for c in columns]
+    if key in columns:
+        return key
+    try:
+        kind = key_kind(key)
+    except ScenarioError:
+        return None
+    for dimension in (kind if isinstance(kind, tuple) else (kind,)):
+        if dimension in COLUMN_UNITS and swept_column(key, dimension) in columns:
+            return swept_column(key, dimension)
+    return None
+
+
+def column_dimensions(keys, points):
+    """For each swept key, the dimension its column is written in (None: no unit).
+
+    A key that takes a mass flow or a volume flow (``production.liquid_rate``) must be given
+    one way at every point, since a column has one unit."""
+    out = {}
+    for key in keys:
+        found = {}
+        for values, _ in points:
+            try:
+                found.setdefault(dimension_of(key, values[key]), values[key])
+            except UnitError:
+                continue  # validate() names the point
+        if len(found) > 1:
+            (d1, v1), (d2, v2) = list(found.items())[:2]
+            raise ScenarioError(f"sweep.{key}: give every value as a {d1.replace('_', ' ')} or every value as a "
+                                f"{d2.replace('_', ' ')} (a column has one unit), got {v1!r} and {v2!r}")
+        out[key] = next(iter(found), None)
+    return out
 
 
 def _range_values(key, spec):
@@ -177,6 +291,7 @@ def validate(keys, points):
                 to_si(key, value)
             except UnitError as err:
                 raise ScenarioError(f"sweep point {k}: {key} = {value!r}: {err}") from None
+    column_dimensions(keys, points)
     return scenarios
 
 
@@ -219,22 +334,28 @@ def _cell(value):
     return str(value)
 
 
-def columns_for(keys, scenarios):
-    """Header of a sweep file: point, the swept keys, status, message, then every summary key."""
+def columns_for(keys, scenarios, dimensions=None):
+    """Header of a sweep file: point, the swept keys (:func:`swept_column`), status, message,
+    then every summary key (one the swept columns already hold, such as ``heat_leak_W``, once)."""
     from cycle.results import summary_keys
 
+    dimensions = dimensions or {}
+    swept = [swept_column(key, dimensions.get(key)) for key in keys]
     summary = []
     for sc in scenarios:
         for key in summary_keys(sc):
             if key not in summary:
                 summary.append(key)
-    return ["point"] + keys + ["status", "message"] + [k for k in summary if k not in keys]
+    return ["point"] + swept + ["status", "message"] + [k for k in summary if k not in swept]
 
 
-def make_row(columns, index, values, outcome):
+def make_row(columns, index, values, outcome, dimensions=None):
     status, message, summary = outcome
+    dimensions = dimensions or {}
     row = {"point": index, "status": status, "message": message}
-    row.update({key: to_si(key, value) for key, value in values.items()})
+    for key, value in values.items():
+        dimension = dimensions.get(key)
+        row[swept_column(key, dimension)] = column_value(to_si(key, value), dimension)
     for key in columns:
         if key not in row:
             row[key] = summary.get(key)
@@ -278,9 +399,14 @@ class ResultsFile:
                 meta = json.loads(self.meta.read_text())
             except (OSError, ValueError):
                 meta = None
-            if meta is None:
+            if not isinstance(meta, dict):
                 raise ScenarioError(f"{self.path} exists and was not written by this sweep; give --overwrite "
                                     f"to replace it, or choose another --out")
+            if meta.get("format", 1) != RESULTS_FORMAT:
+                raise ScenarioError(f"{self.path} was written by an older lhsim (results format "
+                                    f"{meta.get('format', 1)}: swept keys in SI, no unit in their column names); "
+                                    f"give --overwrite to compute it again in format {RESULTS_FORMAT}, or choose "
+                                    f"another --out")
             if meta.get("fingerprint") != self.fingerprint or meta.get("columns") != self.columns:
                 raise ScenarioError(f"{self.path} holds results of a different scenario or sweep; give "
                                     f"--overwrite to replace it, or choose another --out")
@@ -293,8 +419,8 @@ class ResultsFile:
                 if stale.exists():
                     stale.unlink()
         self.path.parent.mkdir(parents=True, exist_ok=True)
-        self.meta.write_text(json.dumps({"fingerprint": self.fingerprint, "columns": self.columns,
-                                         "points": self.points}, indent=1))
+        self.meta.write_text(json.dumps({"format": RESULTS_FORMAT, "fingerprint": self.fingerprint,
+                                         "columns": self.columns, "points": self.points}, indent=1))
         if not self.journal.exists():
             self._rewrite_journal()
 
@@ -401,20 +527,23 @@ def run_sweep(data, out, workers=None, dask=None, overwrite=False, progress=None
     overwrite : bool
         Replace a results file made by a different scenario.
     progress : bool, optional
-        Show a progress bar; default when standard error is a terminal.
+        Show a progress bar (points done, how many made no liquid, how many failed, time left);
+        default when standard error is a terminal.
     batch_size : int, optional
         Points per task sent to a worker; default a few tasks per worker.
 
     Returns
     -------
     dict
-        ``points``, ``computed`` (this run), ``failed`` (status not ok), ``path``.
+        ``points``, ``computed`` (this run), ``no_liquid`` (status ``no-liquid``), ``failed``
+        (status ``invalid`` or ``failed``), ``path``; the counts are over the whole file.
     """
     import sys
 
     keys, points = expand(data)
     scenarios = validate(keys, points)
-    columns = columns_for(keys, scenarios)
+    dimensions = column_dimensions(keys, points)
+    columns = columns_for(keys, scenarios, dimensions)
     results = ResultsFile(out, columns, fingerprint(data), len(points), overwrite)
     todo = [(k, mapping) for k, (values, mapping) in enumerate(points) if k not in results.done]
     workers = workers or os.cpu_count() or 1
@@ -422,7 +551,17 @@ def run_sweep(data, out, workers=None, dask=None, overwrite=False, progress=None
     size = batch_size or max(1, min(25, math.ceil(len(todo) / (16 * workers)) if todo else 1))
     batches = list(_batches(todo, size))
     show = sys.stderr.isatty() if progress is None else progress
-    failed = sum(1 for cells in results.rows.values() if cells[columns.index("status")] != "ok")
+    status_at = columns.index("status")
+    counts = {"no-liquid": 0, "failed": 0}
+
+    def count(status):
+        if status == "no-liquid":
+            counts["no-liquid"] += 1
+        elif status != "ok":
+            counts["failed"] += 1
+
+    for cells in results.rows.values():
+        count(cells[status_at])
     bar = None
     if show:
         from tqdm import tqdm
@@ -433,16 +572,16 @@ def run_sweep(data, out, workers=None, dask=None, overwrite=False, progress=None
             width = 0
         bar = tqdm(total=len(points), initial=len(results.done), unit="point", file=sys.stderr,
                    desc="sweep", ncols=width if width >= 40 else 100)
-        bar.set_postfix(failed=failed)
+        bar.set_postfix_str(progress_note(counts))
 
     def record(done_batch):
-        nonlocal failed
-        rows = [make_row(columns, index, points[index][0], outcome) for index, outcome in done_batch]
+        rows = [make_row(columns, index, points[index][0], outcome, dimensions) for index, outcome in done_batch]
         results.add(rows)
-        failed += sum(1 for _, outcome in done_batch if outcome[0] != "ok")
+        for _, outcome in done_batch:
+            count(outcome[0])
         if bar is not None:
             bar.update(len(done_batch))
-            bar.set_postfix(failed=failed)
+            bar.set_postfix_str(progress_note(counts))
 
     try:
         if dask:
@@ -456,7 +595,13 @@ def run_sweep(data, out, workers=None, dask=None, overwrite=False, progress=None
         if bar is not None:
             bar.close()
     results.finish()
-    return {"points": len(points), "computed": len(todo), "failed": failed, "path": str(out)}
+    return {"points": len(points), "computed": len(todo), "no_liquid": counts["no-liquid"],
+            "failed": counts["failed"], "path": str(out)}
+
+
+def progress_note(counts):
+    """What the progress bar shows beside the count: no liquid apart from failures."""
+    return f"no liquid {counts['no-liquid']}, failed {counts['failed']}"
 
 
 def _run_processes(batches, workers, record):

@@ -101,15 +101,22 @@ def test_sweep_chart_draws_the_results(tmp_path, capsys):
     run_sweep(SWEEP, out, workers=1)
     frame = pd.read_csv(out, keep_default_na=False, na_values=[""])
     fig, data = plots.sweep_chart(frame, "high_pressure", "liquid_yield", "gas")
+    assert data["x"] == "high_pressure_bar"  # the bare key finds its column with the unit
     assert data["x_label"] == "high pressure [bar]" and data["y_label"] == "liquid yield [-]"
     lines = {value: (xs, ys) for value, xs, ys in data["lines"]}
-    ok = frame[(frame.gas == "argon") & (frame.status == "ok")].sort_values("high_pressure")
-    assert lines["gas = argon"][0] == pytest.approx(ok.high_pressure.to_numpy() / 1e5, rel=1e-12)  # Pa shown in bar
-    assert np.array_equal(lines["gas = argon"][1], ok.liquid_yield.to_numpy())
+    ok = frame[(frame.gas == "argon") & (frame.status == "ok")].sort_values("high_pressure_bar")
+    assert np.array_equal(lines["argon"][0], ok.high_pressure_bar.to_numpy())  # drawn as written: bar
+    assert lines["argon"][0][0] == pytest.approx(60.0, rel=1e-12)
+    assert np.array_equal(lines["argon"][1], ok.liquid_yield.to_numpy())
     misses = {value: xs for value, xs, _ in data["misses"]}
-    assert len(misses["gas = neon"]) == 5 and len(lines["gas = neon"][0]) == 0  # neon: no liquid without precooling
+    assert len(misses["neon"]) == 5 and len(lines["neon"][0]) == 0  # neon: no liquid without precooling
+    assert data["legend"] == ["nitrogen", "argon", "neon", "no liquid (on the axis)"]
+    _, same = plots.sweep_chart(frame, "high_pressure_bar", "liquid_yield", "gas")  # the full column name too
+    assert [v for v, _, _ in same["lines"]] == list(lines)
     assert plots.axis_label("work_kJ_per_kg_liquid")[0] == "work [kJ/kg of liquid]"
-    assert plots.axis_label("recuperator.ua")[0] == "recuperator: ua [W/K]"
+    assert plots.axis_label("recuperator.ua")[0] == "recuperator: ua [W/K]"  # a bare key in SI
+    assert plots.axis_label("recuperator.ua_W_per_K") == ("recuperator: ua [W/K]", 1.0)
+    assert plots.axis_label("production.liquid_rate_L_per_h") == ("production: liquid rate [L/h]", 1.0)
     assert cli.main(["plot", str(out), "--x", "high_pressure", "--y", "figure_of_merit", "--by", "gas"]) == 0
     for ext in ("png", "svg"):
         made = tmp_path / f"r-figure_of_merit-vs-high_pressure-by-gas.{ext}"
@@ -201,6 +208,86 @@ def test_other_swept_keys_get_lines_of_their_own(tmp_path):
     frame = pd.read_csv(out, keep_default_na=False, na_values=[""])
     _, drawn = plots.sweep_chart(frame, "high_pressure", "liquid_yield", "gas")
     labels = [value for value, _, _ in drawn["lines"]]
-    assert len(labels) == 4 and "gas = argon, recuperator.effectiveness = 0.99" in labels
+    assert len(labels) == 4 and "argon, recuperator: effectiveness 0.99" in labels
     for _, xs, _ in drawn["lines"]:
         assert list(xs) == sorted(xs) and len(xs) == 3  # one point per pressure: no zigzag
+
+
+def _legend_outside(fig):
+    fig.canvas.draw()
+    ax = fig.axes[0]
+    legend = ax.get_legend().get_window_extent()
+    return legend.x0 >= ax.get_window_extent().x1
+
+
+def test_legend_units_as_on_the_axes_at_most_eight_entries_outside_the_data(tmp_path):
+    from cycle.sweep import run_sweep
+    import pandas as pd
+
+    # 3 gases x 2 effectivenesses x 2 ambient temperatures = 12 lines: too many to list.
+    data = dict(SWEEP, sweep={"high_pressure": ["100 bar", "200 bar"], "gas": ["nitrogen", "argon", "methane"],
+                              "recuperator.effectiveness": [0.95, 0.99], "ambient_temperature": ["290 K", "27 degC"]})
+    out = tmp_path / "r.csv"
+    run_sweep(data, out, workers=1)
+    frame = pd.read_csv(out, keep_default_na=False, na_values=[""])
+    fig, drawn = plots.sweep_chart(frame, "high_pressure", "liquid_yield", "gas")
+    assert len(drawn["lines"]) == 12 and len(drawn["legend"]) <= plots.LEGEND_ENTRIES
+    assert drawn["legend"] == ["nitrogen", "argon", "methane",  # one per colour, then one per line style
+                               "recuperator: effectiveness 0.95, ambient temperature 290 K",
+                               "recuperator: effectiveness 0.95, ambient temperature 300.15 K",
+                               "recuperator: effectiveness 0.99, ambient temperature 290 K",
+                               "recuperator: effectiveness 0.99, ambient temperature 300.15 K"]
+    assert _legend_outside(fig)
+    # More combinations than line styles: one entry says so.
+    data["sweep"] = {"high_pressure": ["100 bar", "200 bar"], "gas": ["nitrogen", "argon"],
+                     "recuperator.effectiveness": [0.95, 0.96, 0.97, 0.98, 0.99]}
+    run_sweep(data, tmp_path / "q.csv", workers=1)
+    fig, drawn = plots.sweep_chart(pd.read_csv(tmp_path / "q.csv"), "high_pressure", "liquid_yield", "gas")
+    assert drawn["legend"] == ["nitrogen", "argon", "5 lines per colour, one per value of recuperator: effectiveness"]
+    # Four gases leave too little room for four style entries beside the no-liquid entry.
+    data["sweep"] = {"high_pressure": ["100 bar", "200 bar"], "gas": ["nitrogen", "argon", "methane", "neon"],
+                     "recuperator.effectiveness": [0.95, 0.99], "ambient_temperature": ["290 K", "27 degC"]}
+    run_sweep(data, tmp_path / "s.csv", workers=1)
+    fig, drawn = plots.sweep_chart(pd.read_csv(tmp_path / "s.csv"), "high_pressure", "liquid_yield", "gas")
+    assert drawn["legend"] == ["nitrogen", "argon", "methane", "neon", "4 lines per colour, one per combination of "
+                               "recuperator: effectiveness and ambient temperature", "no liquid (on the axis)"]
+    assert _legend_outside(fig)
+    # Few lines: one entry each, with the unit of the axes (300.15 K for 27 degC).
+    few = frame[frame["recuperator.effectiveness"] == 0.99]
+    few = few[few.gas == "nitrogen"]
+    fig, drawn = plots.sweep_chart(few, "high_pressure", "liquid_yield", "ambient_temperature")
+    assert drawn["legend"] == ["ambient temperature 290 K", "ambient temperature 300.15 K"]
+    assert _legend_outside(fig)
+
+
+def test_many_numeric_values_get_a_colour_bar(tmp_path):
+    from cycle.sweep import run_sweep
+    import pandas as pd
+
+    data = dict(SWEEP, sweep={"high_pressure": ["100 bar", "200 bar"],
+                              "heat_leak": {"from": "0 W", "to": "10 W", "steps": 11}},
+                production={"liquid_rate": "10 L/h"})
+    out = tmp_path / "r.csv"
+    run_sweep(data, out, workers=1)
+    frame = pd.read_csv(out, keep_default_na=False, na_values=[""])
+    fig, drawn = plots.sweep_chart(frame, "high_pressure", "liquid_yield", "heat_leak")
+    assert len(drawn["lines"]) == 11 and drawn["legend"] == []  # the colour bar says which is which
+    assert len(fig.axes) == 2 and fig.axes[1].get_xlabel() == "heat leak [W]"
+    assert len(set(map(tuple, drawn["colours"]))) == 11
+
+
+def test_plot_refuses_a_file_that_is_not_results(tmp_path, capsys):
+    table = tmp_path / "other.csv"
+    table.write_text("a,b\n1,2\n")
+    assert cli.main(["plot", str(table), "--x", "a", "--y", "b"]) == 2
+    err = capsys.readouterr().err
+    assert err == (f"lhsim: error: {table} is not an lhsim results file (it has no point and status columns); "
+                   f"make one with lhsim sweep\n")
+    assert cli.main(["plot", str(ROOT / "scenarios" / "nitrogen-bench.yaml"), "--x", "a", "--y", "b"]) == 2
+    err = capsys.readouterr().err
+    assert "is not an lhsim results file" in err and err.count("\n") == 1
+    binary = tmp_path / "r.parquet"
+    binary.write_bytes(b"\x00\x01 not parquet")
+    assert cli.main(["plot", str(binary), "--x", "a", "--y", "b"]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith(f"lhsim: error: results file {binary} could not be read as a table") and err.count("\n") == 1

@@ -96,14 +96,17 @@ def test_sweep_file_columns_and_values(tmp_path):
     out = tmp_path / "r.csv"
     outcome = run_sweep(SWEEP, out, workers=1)
     rows = read(out)
-    assert outcome == {"points": 12, "computed": 12, "failed": 6, "path": str(out)}
+    assert outcome == {"points": 12, "computed": 12, "no_liquid": 6, "failed": 0, "path": str(out)}
     assert [int(r["point"]) for r in rows] == list(range(12))
-    assert list(rows[0])[:5] == ["point", "high_pressure", "gas", "status", "message"]
-    assert float(rows[0]["high_pressure"]) == pytest.approx(60e5)  # SI in the key's own column
+    assert list(rows[0])[:5] == ["point", "high_pressure_bar", "gas", "status", "message"]
+    # Swept pressures in bar, the unit in the column name, as the summary keys carry theirs:
+    # 60 to 260 bar in 6 steps is 40 bar apart.
+    assert [float(r["high_pressure_bar"]) for r in rows[::2]] == pytest.approx([60, 100, 140, 180, 220, 260],
+                                                                              rel=1e-12)
     by_gas = {g: [r for r in rows if r["gas"] == g] for g in ("nitrogen", "hydrogen")}
     assert {r["status"] for r in by_gas["hydrogen"]} == {"no-liquid"}
     assert all(r["liquid_yield"] == "" and "precooling" in r["message"] for r in by_gas["hydrogen"])
-    one = api.run(dict(BASE, high_pressure=float(rows[4]["high_pressure"])))
+    one = api.run(dict(BASE, high_pressure=f"{rows[4]['high_pressure_bar']} bar"))
     assert float(rows[4]["liquid_yield"]) == one.summary()["liquid_yield"]  # exact: the same solve
     assert float(rows[4]["liquid_rate_L_per_h"]) == pytest.approx(10.0)
 
@@ -120,6 +123,55 @@ def test_rerun_computes_only_missing_points_and_drops_a_cut_line(tmp_path):
     outcome = run_sweep(SWEEP, part, workers=1)
     assert outcome["computed"] == 8
     assert part.read_bytes() == full.read_bytes()
+
+
+@pytest.mark.parametrize("key, values, column, expected", [
+    ("ambient_temperature", ["27 degC", "310 K"], "ambient_temperature_K", [300.15, 310.0]),
+    ("recuperator.min_approach", ["2 K", "9 degF"], "recuperator.min_approach_K", [2.0, 5.0]),
+    ("heat_leak", ["5 W", "0.01 kW"], "heat_leak_W", [5.0, 10.0]),
+    ("production.liquid_rate", ["10 L/h", "0.5 L/min"], "production.liquid_rate_L_per_h", [10.0, 30.0]),
+    ("production.liquid_rate", ["8 kg/h", "0.002 kg/s"], "production.liquid_rate_kg_per_h", [8.0, 7.2]),
+    ("production.compressor_flow", ["0.05 kg/s"], "production.compressor_flow_kg_per_h", [180.0]),
+    ("aftercooler.pressure_drop", ["40 kPa"], "aftercooler.pressure_drop_bar", [0.4]),
+    ("recuperator.zones", [10, 20], "recuperator.zones", [10, 20]),
+])
+def test_swept_columns_carry_the_unit_of_the_summary_keys(tmp_path, key, values, column, expected):
+    from cycle.sweep import expand, validate, column_dimensions, columns_for
+
+    data = dict(BASE, recuperator={"min_approach": "3 K", "zones": 10}, sweep={key: values})
+    if key == "production.compressor_flow":
+        data["production"] = {}  # one production target at a time
+    keys, points = expand(data)
+    dims = column_dimensions(keys, points)
+    columns = columns_for(keys, validate(keys, points), dims)
+    assert columns[1] == column and columns.count(column) == 1  # heat_leak_W is written once
+    out = tmp_path / "r.csv"
+    run_sweep(data, out, workers=1)
+    assert [float(r[column]) for r in read(out)] == pytest.approx(expected, rel=1e-12)
+
+
+def test_a_column_has_one_unit():
+    with pytest.raises(ScenarioError) as info:
+        run_sweep(with_sweep(**{"production.liquid_rate": ["10 L/h", "8 kg/h"]}), "unused.csv")
+    assert str(info.value) == ("sweep.production.liquid_rate: give every value as a volume flow or every value "
+                               "as a mass flow (a column has one unit), got '10 L/h' and '8 kg/h'")
+
+
+def test_a_results_file_of_the_previous_format_is_refused_clearly(tmp_path):
+    out = tmp_path / "r.csv"
+    run_sweep(SWEEP, out, workers=1)
+    meta = json.loads((tmp_path / "r.csv.lhsim.json").read_text())
+    assert meta["format"] == 2
+    # What format 1 wrote: the same scenario's fingerprint, swept keys under their bare names in SI.
+    old = dict(meta, columns=[c.replace("high_pressure_bar", "high_pressure") for c in meta["columns"]])
+    del old["format"]
+    (tmp_path / "r.csv.lhsim.json").write_text(json.dumps(old))
+    with pytest.raises(ScenarioError) as info:
+        run_sweep(SWEEP, out, workers=1)
+    assert str(info.value) == (f"{out} was written by an older lhsim (results format 1: swept keys in SI, no unit "
+                               f"in their column names); give --overwrite to compute it again in format 2, or "
+                               f"choose another --out")
+    assert run_sweep(SWEEP, out, workers=1, overwrite=True)["computed"] == 12
 
 
 def test_a_different_scenario_is_refused_unless_overwrite(tmp_path):
@@ -192,7 +244,8 @@ def test_cli_sweep(capsys, tmp_path):
     out = tmp_path / "r.csv"
     assert cli.main(["sweep", str(scenario), "--out", str(out), "--workers", "2"]) == 0
     err = capsys.readouterr().err
-    assert "12 points" in err and "\r" not in err  # no progress bar when stderr is not a terminal
+    assert "\r" not in err  # no progress bar when stderr is not a terminal
+    assert f"12 points in {out} (12 computed now; 6 made no liquid, 0 failed or invalid)" in err
     bad = tmp_path / "bad.yaml"
     bad.write_text(yaml.safe_dump(with_sweep(**{"recuperator.effectiveness": [2]})))
     assert cli.main(["sweep", str(bad), "--out", str(tmp_path / "x.csv")]) == 2
@@ -270,6 +323,10 @@ def test_api_for_notebooks(tmp_path):
     frame = api.sweep(BASE, {"recuperator.effectiveness": [0.95, 0.97, 0.99]})
     assert list(frame["recuperator.effectiveness"]) == [0.95, 0.97, 0.99]
     assert frame["liquid_yield"].is_monotonic_increasing
+    # The file's columns (bar), then the same values in SI under the bare key (Pa).
+    both = api.sweep(BASE, {"high_pressure": ["100 bar", "150 bar"], "gas": ["nitrogen"]})
+    assert list(both.columns[:3]) == ["point", "high_pressure_bar", "gas"] and both.columns[-1] == "high_pressure"
+    assert list(both["high_pressure_bar"]) == [100.0, 150.0] and list(both["high_pressure"]) == [100e5, 150e5]
     result = api.run("scenarios/argon-unit.yaml")
     assert result.to_frame().loc[1, "stream"] == "compressor suction"
     table = api.compare("scenarios/nitrogen-bench.yaml", ["nitrogen", "argon"])
@@ -312,6 +369,7 @@ def test_ctrl_c_keeps_the_rows_and_says_how_to_finish(tmp_path):
 def test_progress_bar_shows_points_failures_and_time_left(tmp_path, capsys):
     run_sweep(SWEEP, tmp_path / "r.csv", workers=1, progress=True)
     shown = capsys.readouterr().err
-    assert "12/12" in shown and "failed=6" in shown and "<00:00" in shown  # done, failures, time left
+    # done; hydrogen's six points counted as no liquid, apart from failures; time left
+    assert "12/12" in shown and "no liquid 6, failed 0" in shown and "<00:00" in shown
     run_sweep(SWEEP, tmp_path / "q.csv", workers=1)  # stderr is not a terminal here: quiet
     assert capsys.readouterr().err == ""
