@@ -10,6 +10,10 @@ from dataclasses import dataclass
 from cycle import processes
 
 
+# How the isothermal model's outlet state is named in state tables and figures.
+ISOTHERMAL_LABEL = "(isothermal model: cooled in the machine)"
+
+
 @dataclass(frozen=True)
 class CompressionResult:
     """Outcome of the compressor train.
@@ -67,7 +71,10 @@ class Compressor:
             outlet, work, heat = processes.compress_isothermal(
                 fluid, inlet, p_out, self.cooling_temperature, spec.isothermal_efficiency,
                 self.ambient_temperature)
-            return CompressionResult([(last, outlet)], work, heat)
+            # Not a discharge at a temperature a machine would show: the model rejects the heat
+            # inside the compressor and delivers the gas at the aftercooler temperature.
+            label = f"{section}outlet" if section else "compressor outlet"
+            return CompressionResult([(f"{label} {ISOTHERMAL_LABEL}", outlet)], work, heat)
         states, work, heat = [], 0.0, 0.0
         state = inlet
         pressures = processes.stage_pressures(inlet.p, p_out, spec.stages)

@@ -702,7 +702,7 @@ class Liquefier:
         losses = {
             "compressor": self._exergy_loss([(suction, 1.0)], [(hp_in, 1.0)],
                                             [(-(comp.heat_rejected + after_duty), self.T0)]),
-            "makeup_mixing": self._exergy_loss([(ret, 1.0 - y), (makeup, y)], [(suction, 1.0)]),
+            "make_up_mixing": self._exergy_loss([(ret, 1.0 - y), (makeup, y)], [(suction, 1.0)]),
         }
         return makeup, comp, hp_in, after_duty, streams, losses
 

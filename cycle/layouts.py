@@ -232,7 +232,7 @@ class DualPressureLindeHampson(Liquefier):
             "recuperator": self._exergy_loss([(hot_in, 1.0), (vapour, 1.0 - i - y), (mid, i)],
                                              [(hp_out, 1.0), (lp_ret, 1.0 - i - y), (ip_ret, i)]),
             "intermediate_valve": self._exergy_loss([(hp_out, 1.0)], [(mid, 1.0)]),
-            "makeup_mixing": self._exergy_loss([(lp_ret, 1.0 - i - y), (makeup, y)], [(suction, 1.0 - i)]),
+            "make_up_mixing": self._exergy_loss([(lp_ret, 1.0 - i - y), (makeup, y)], [(suction, 1.0 - i)]),
         }
         losses.update(self._cold_end_losses(y, q_leak, mid, valve_out, 1.0 - i, liquid, vapour))
         return self._finish(

@@ -4,14 +4,22 @@
 WIDTH = 100
 
 
+def number(value, fmt="{:.4g}"):
+    """``value`` formatted by ``fmt``; ``-`` for None or a non-finite value; no sign on a value
+    that rounds to zero (never ``-0.0``)."""
+    if value is None or (isinstance(value, float) and value != value):
+        return "-"
+    if isinstance(value, str):
+        return value
+    text = fmt.format(value)
+    mantissa = text.split("e")[0]
+    if text.startswith("-") and not any(c in "123456789" for c in mantissa):
+        text = text[1:]
+    return text
+
+
 def _line(label, value, unit="", fmt="{:.4g}"):
-    if value is None:
-        text = "-"
-    elif isinstance(value, str):
-        text = value
-    else:
-        text = fmt.format(value)
-    return f"  {label:<44s} {text:>12s} {unit}".rstrip()
+    return f"  {label:<44s} {number(value, fmt):>12s} {unit}".rstrip()
 
 
 def _mode_text(spec):
@@ -37,75 +45,97 @@ def _layout_text(sc):
     return f"simple cycle; recuperator by {_mode_text(sc.recuperator)}"
 
 
-def format_result(result):
-    """The design point as readable text: headline numbers, sizing, losses, solve and state table."""
+CRITICAL_NONE = "none needed: throttling alone makes liquid"
+UA_UNBOUNDED = "unbounded (streams touch)"
+
+
+def summary_sections(result):
+    """The design point as titled sections of (label, value text, unit) rows, leaving out rows
+    that do not apply to the layout.  The text output and the HTML report both show these."""
     sc = result.scenario
     s = result.summary()
+    precooled = sc.layout == "precooled"
+    perf = [
+        ("liquid yield (liquid / compressor flow)", number(s["liquid_yield"], "{:.5f}"), ""),
+        ("work per kg compressed", number(s["work_kJ_per_kg_compressed"], "{:.1f}"), "kJ/kg"),
+        ("work per kg liquid", number(s["work_kJ_per_kg_liquid"], "{:.0f}"), "kJ/kg"),
+    ]
+    if precooled:
+        perf += [("  of which compressor", number(s["compressor_work_kJ_per_kg_liquid"], "{:.0f}"), "kJ/kg"),
+                 ("  of which precooling", number(s["precooling_work_kJ_per_kg_liquid"], "{:.0f}"), "kJ/kg")]
+    perf += [
+        ("ideal work of liquefaction", number(s["ideal_work_kJ_per_kg_liquid"], "{:.1f}"), "kJ/kg"),
+        ("figure of merit", number(s["figure_of_merit"], "{:.4f}"), ""),
+        ("throttle outlet temperature", number(s["throttle_outlet_temperature_K"], "{:.2f}"), "K"),
+        ("throttle outlet quality (vapour fraction)", number(s["throttle_outlet_quality"], "{:.4f}"), ""),
+    ]
+    sections = [("Performance", perf)]
+    if precooled:
+        rows = [("precooler duty per kg compressed", number(s["precooler_duty_kJ_per_kg_compressed"], "{:.2f}"),
+                 "kJ/kg")]
+        if "coolant_kg_per_kg_liquid" in s:
+            rows.append((f"{sc.precooling.coolant} boiled off per kg liquid",
+                         number(s["coolant_kg_per_kg_liquid"], "{:.3f}"), "kg/kg"))
+        sections.append(("Precooling", rows))
+    for name, rec in result.recuperators.items():
+        rows = [("effectiveness", number(rec.effectiveness, "{:.4f}"), "")]
+        crit = rec.critical_effectiveness
+        if crit is not None:
+            rows.append(("critical effectiveness (no liquid below)",
+                         number(crit, "{:.4f}") if crit > 0 else CRITICAL_NONE, ""))
+        ua = s[f"{name}_UA_W_per_K_per_kg_per_s"]
+        rows += [
+            ("minimum approach", number(rec.min_approach, "{:.2f}"), "K"),
+            ("  at fraction of duty from cold end", number(rec.min_approach_position, "{:.2f}"), ""),
+            ("warm-end / cold-end approach",
+             f"{number(rec.warm_end_approach, '{:.2f}')} / {number(rec.cold_end_approach, '{:.2f}')}", "K"),
+            ("duty per kg compressed", number(rec.duty / 1e3, "{:.2f}"), "kJ/kg"),
+            ("UA per unit compressor flow", number(ua, "{:.0f}") if ua is not None else UA_UNBOUNDED,
+             "W/K per kg/s" if ua is not None else ""),
+        ]
+        sections.append((name.replace("_", " ").capitalize(), rows))
+    if "compressor_flow_kg_per_h" in s:
+        rows = [
+            ("compressor flow", number(s["compressor_flow_kg_per_h"], "{:.2f}"), "kg/h"),
+            ("liquid rate", number(s["liquid_rate_kg_per_h"], "{:.3f}"), "kg/h"),
+            ("liquid rate (saturated liquid)", number(s["liquid_rate_L_per_h"], "{:.3f}"), "L/h"),
+            ("compressor power", number(s["compressor_power_kW"], "{:.3f}"), "kW"),
+        ]
+        if precooled:
+            rows.append(("precooling power (work charged)", number(s["precooling_power_kW"], "{:.3f}"), "kW"))
+            if "coolant_kg_per_h" in s:
+                rows.append((f"{sc.precooling.coolant} boiled off", number(s["coolant_kg_per_h"], "{:.3f}"), "kg/h"))
+        ua_total = s["recuperator_UA_W_per_K"]
+        rows += [
+            ("heat rejected (compressor and aftercooler)", number(s["heat_rejected_kW"], "{:.3f}"), "kW"),
+            ("recuperator duty (all recuperators)", number(s["recuperator_duty_kW"], "{:.3f}"), "kW"),
+            ("recuperator UA (all recuperators)", number(ua_total, "{:.1f}") if ua_total is not None
+             else UA_UNBOUNDED, "W/K" if ua_total is not None else ""),
+        ]
+        if sc.heat_leak:
+            rows.append(("cold-box heat leak", number(s["heat_leak_W"], "{:.3g}"), "W"))
+        sections.append(("Production", rows))
+    return sections
+
+
+def format_result(result):
+    """The design point as readable text: headline numbers, sizing, losses, solve and state table."""
+    import textwrap
+
+    sc = result.scenario
     out = [f"lhsim design point: {sc.name or 'unnamed scenario'}",
            f"  {sc.gas}, {sc.low_pressure / 1e5:g} -> {sc.high_pressure / 1e5:g} bar, "
            f"ambient {sc.ambient_temperature:g} K",
-           f"  {_layout_text(sc)}",
-           "", "Performance"]
-    out += [
-        _line("liquid yield (liquid / compressor flow)", s["liquid_yield"], "", "{:.5f}"),
-        _line("work per kg compressed", s["work_kJ_per_kg_compressed"], "kJ/kg", "{:.1f}"),
-        _line("work per kg liquid", s["work_kJ_per_kg_liquid"], "kJ/kg", "{:.0f}"),
-    ]
-    if sc.layout == "precooled":
-        out += [
-            _line("  of which compressor", s["compressor_work_kJ_per_kg_liquid"], "kJ/kg", "{:.0f}"),
-            _line("  of which precooling", s["precooling_work_kJ_per_kg_liquid"], "kJ/kg", "{:.0f}"),
-        ]
-    out += [
-        _line("ideal work of liquefaction", s["ideal_work_kJ_per_kg_liquid"], "kJ/kg", "{:.1f}"),
-        _line("figure of merit", s["figure_of_merit"], "", "{:.4f}"),
-        _line("throttle outlet temperature", s["throttle_outlet_temperature_K"], "K", "{:.2f}"),
-        _line("throttle outlet quality (vapour fraction)", s["throttle_outlet_quality"], "", "{:.4f}"),
-    ]
-    if sc.layout == "precooled":
-        out += ["", "Precooling"]
-        out.append(_line("precooler duty per kg compressed", s["precooler_duty_kJ_per_kg_compressed"], "kJ/kg", "{:.2f}"))
-        if "coolant_kg_per_kg_liquid" in s:
-            out.append(_line(f"{sc.precooling.coolant} boiled off per kg liquid", s["coolant_kg_per_kg_liquid"], "kg/kg", "{:.3f}"))
-    for name in result.recuperators:
-        title = name.replace("_", " ").capitalize()
-        out += ["", title]
-        out += [
-            _line("effectiveness", s[f"{name}_effectiveness"], "", "{:.4f}"),
-            _line("critical effectiveness (no liquid below)", s[f"{name}_critical_effectiveness"], "", "{:.4f}"),
-            _line("minimum approach", s[f"{name}_min_approach_K"], "K", "{:.2f}"),
-            _line("  at fraction of duty from cold end", s[f"{name}_min_approach_position"], "", "{:.2f}"),
-            _line("warm-end / cold-end approach",
-                  f"{s[f'{name}_warm_end_approach_K']:.2f} / {s[f'{name}_cold_end_approach_K']:.2f}", "K"),
-            _line("duty per kg compressed", s[f"{name}_duty_kJ_per_kg_compressed"], "kJ/kg", "{:.2f}"),
-            _line("UA per unit compressor flow", s[f"{name}_UA_W_per_K_per_kg_per_s"], "W/K per kg/s", "{:.0f}"),
-        ]
-    if "compressor_flow_kg_per_h" in s:
-        out += ["", "Production"]
-        out += [
-            _line("compressor flow", s["compressor_flow_kg_per_h"], "kg/h", "{:.2f}"),
-            _line("liquid rate", s["liquid_rate_kg_per_h"], "kg/h", "{:.3f}"),
-            _line("liquid rate (saturated liquid)", s["liquid_rate_L_per_h"], "L/h", "{:.3f}"),
-            _line("compressor power", s["compressor_power_kW"], "kW", "{:.3f}"),
-        ]
-        if sc.layout == "precooled":
-            out.append(_line("precooling power (work charged)", s["precooling_power_kW"], "kW", "{:.3f}"))
-            if "coolant_kg_per_h" in s:
-                out.append(_line(f"{sc.precooling.coolant} boiled off", s["coolant_kg_per_h"], "kg/h", "{:.3f}"))
-        out += [
-            _line("heat rejected (compressor and aftercooler)", s["heat_rejected_kW"], "kW", "{:.3f}"),
-            _line("recuperator duty (all recuperators)", s["recuperator_duty_kW"], "kW", "{:.3f}"),
-            _line("recuperator UA (all recuperators)", s["recuperator_UA_W_per_K"], "W/K", "{:.1f}"),
-            _line("cold-box heat leak", s["heat_leak_W"], "W", "{:.3g}"),
-        ]
+           textwrap.fill(_layout_text(sc), WIDTH, initial_indent="  ", subsequent_indent="    ")]
+    for title, rows in summary_sections(result):
+        out += ["", title] + [f"  {label:<44s} {value:>12s} {unit}".rstrip() for label, value, unit in rows]
     out += ["", "Where the work goes (exergy, per kg of liquid)", format_exergy(result)]
-    import textwrap
-
     out += ["", "Solve"] + [textwrap.fill(line, WIDTH, initial_indent="  ", subsequent_indent="    ")
                             for line in solve_lines(result)]
-    out += ["", "Streams (flow per kg of compressor flow)", _state_table(result)]
+    out += ["", "Streams (flow per kg of compressor flow)", format_states(result)]
     if result.warnings:
-        out += ["", "Warnings"] + [f"  - {w}" for w in result.warnings]
+        out += ["", "Warnings"] + [textwrap.fill(w, WIDTH, initial_indent="  - ", subsequent_indent="    ")
+                                   for w in result.warnings]
     return "\n".join(out)
 
 
@@ -117,7 +147,7 @@ def solve_lines(result):
         unit = "" if rep.residual_unit == "-" else f" {rep.residual_unit}"
         if rep.status == "met" and rep.converged:
             lines.append(f"{label}: converged in {rep.iterations} iterations ({rep.function_calls} evaluations); "
-                         f"target {rep.target:.6g}{unit}, residual {_number(rep.residual, '{:.1e}')}{unit} "
+                         f"target {rep.target:.6g}{unit}, residual {number(rep.residual, '{:.1e}')}{unit} "
                          f"(allowed {rep.residual_tolerance:.0e}{unit})")
         elif rep.status == "limit":
             lines.append(f"{label}: target not reached, {rep.target:.6g}{unit} asked, {rep.achieved:.6g}{unit} is all "
@@ -129,43 +159,63 @@ def solve_lines(result):
     return lines
 
 
-def _number(value, fmt):
-    """``fmt`` applied to ``value``, without the sign of a value that rounds to zero."""
-    text = fmt.format(value)
-    if text.startswith("-") and not any(c in "123456789" for c in text.split("e")[0]):
-        text = text[1:]
-    return text
+def exergy_rows(result):
+    """(label, kJ per kg of liquid, share of the actual work in %) rows: the ideal work, each
+    unit's exergy loss largest first, and the actual work."""
+    from cycle.results import loss_label
+
+    total = result.work_per_kg_liquid
+    rows = [("ideal work of liquefaction", result.ideal_work_per_kg_liquid)]
+    rows += [(loss_label(name), value) for name, value in result.exergy_losses_per_kg_liquid().items()]
+    rows.append(("actual work (sum)", total))
+    return [(label, value / 1e3, 100.0 * value / total) for label, value in rows]
 
 
 def format_exergy(result):
     """Ideal work and each unit's exergy loss, largest first, with shares of the actual work."""
-    total = result.work_per_kg_liquid
-    rows = [("ideal work of liquefaction", result.ideal_work_per_kg_liquid)]
-    rows += [(name.replace("_", " "), value) for name, value in result.exergy_losses_per_kg_liquid().items()]
     lines = [f"  {'':<44s} {'kJ/kg':>12s} {'share':>7s}"]
-    for label, value in rows:
-        lines.append(f"  {label:<44s} {value / 1e3:12.1f} {100 * value / total:6.1f} %")
-    lines.append(f"  {'actual work (sum)':<44s} {total / 1e3:12.1f} {100.0:6.1f} %")
+    for label, value, share in exergy_rows(result):
+        lines.append(f"  {label:<44s} {number(value, '{:.1f}'):>12s} {number(share, '{:.1f}'):>6s} %")
     return "\n".join(lines)
 
 
-def _state_table(result):
-    import pandas as pd
+# Columns of the state table: (heading, row key, format); one precision per column.
+STATE_COLUMNS = [
+    ("T [K]", "temperature_K", "{:.2f}"),
+    ("p [bar]", "pressure_bar", "{:.3f}"),
+    ("h [kJ/kg]", "enthalpy_kJ_per_kg", "{:.2f}"),
+    ("s [kJ/kg K]", "entropy_kJ_per_kg_K", "{:.4f}"),
+    ("x [-]", "quality", "{:.4f}"),
+    ("flow [-]", "flow_per_kg_compressed", "{:.4f}"),
+    ("flow [kg/h]", "mass_flow_kg_per_h", "{:.3f}"),
+]
 
-    frame = pd.DataFrame(result.state_rows())
-    table = pd.DataFrame({
-        "#": frame["number"],
-        "stream": frame["stream"],
-        "T [K]": frame["temperature_K"].map("{:.2f}".format),
-        "p [bar]": frame["pressure_bar"].map("{:.4g}".format),
-        "h [kJ/kg]": frame["enthalpy_kJ_per_kg"].map("{:.2f}".format),
-        "s [kJ/kg K]": frame["entropy_kJ_per_kg_K"].map("{:.4f}".format),
-        "x [-]": frame["quality"].map(lambda q: "" if q is None or q != q else f"{q:.4f}"),
-        "flow [-]": frame["flow_per_kg_compressed"].map("{:.4f}".format),
-    })
-    if "mass_flow_kg_per_h" in frame:
-        table["flow [kg/h]"] = frame["mass_flow_kg_per_h"].map("{:.3f}".format)
-    return table.to_string(index=False)
+
+def state_cells(row, columns=STATE_COLUMNS):
+    """The state-table cells of one ``CycleResult.state_rows()`` row (blank where not given)."""
+    return [number(row[key], fmt) if row.get(key) is not None else "" for _, key, fmt in columns]
+
+
+def state_columns(rows):
+    """The columns of :data:`STATE_COLUMNS` that these rows have (flow in kg/h needs a production target)."""
+    return [c for c in STATE_COLUMNS if any(c[1] in r for r in rows)]
+
+
+def format_states(result, width=WIDTH):
+    """The state table within ``width`` characters: stream names left-aligned and wrapped."""
+    import textwrap
+
+    rows = result.state_rows()
+    columns = state_columns(rows)
+    cells = [state_cells(r, columns) for r in rows]
+    widths = [max(len(h), *(len(c[k]) for c in cells)) for k, (h, _, _) in enumerate(columns)]
+    name_width = max(12, width - sum(w + 1 for w in widths) - 3)
+    lines = [f"{'#':>2s} {'stream':<{name_width}s}" + "".join(f" {h:>{w}s}" for (h, _, _), w in zip(columns, widths))]
+    for r, c in zip(rows, cells):
+        name = textwrap.wrap(r["stream"], name_width) or [""]
+        lines.append(f"{r['number']:>2d} {name[0]:<{name_width}s}" + "".join(f" {v:>{w}s}" for v, w in zip(c, widths)))
+        lines += [f"   {more}" for more in name[1:]]
+    return "\n".join(lines)
 
 
 def format_gas(info):
@@ -214,6 +264,9 @@ def format_comparison(rows):
         table["compressor flow [kg/h]"] = [num(r, "compressor_flow_kg_per_h", "{:.2f}") for r in rows]
         table["compressor power [kW]"] = [num(r, "compressor_power_kW", "{:.3f}") for r in rows]
     lines = [table.to_string(index=False)]
+    bounds = [f"  {r['gas']}: {r['note']}" for r in rows if r.get("on_bound")]
+    if bounds:
+        lines += ["", "Optimum on a bound of the search (the best pressure may lie outside it):"] + bounds
     notes = [f"  {r['gas']}: {r['message']}" for r in rows if r["status"] != "ok"]
     if notes:
         lines += ["", "Why some gases make no liquid here:"] + notes
@@ -227,14 +280,16 @@ def format_optimum(found):
              f"{'converged' if found['converged'] else 'NOT converged'})"]
     from cycle.scenario import key_kind
 
+    on_bound = found.get("on_bound") or {}
     for key, value in found["vary"].items():
         kind = key_kind(key)
+        side = f"  ({on_bound[key]} bound)" if key in on_bound else ""
         if kind == "pressure":
-            lines.append(_line(key, value / 1e5, "bar", "{:.2f}"))
+            lines.append(_line(key, value / 1e5, "bar", "{:.2f}") + side)
         elif kind in ("temperature", "temperature_difference"):
-            lines.append(_line(key, value, "K", "{:.2f}"))
+            lines.append(_line(key, value, "K", "{:.2f}") + side)
         else:
-            lines.append(_line(key + " (SI)", value, "", "{:.6g}"))
+            lines.append(_line(key + " (SI)", value, "", "{:.6g}") + side)
     lines += [
         _line("liquid yield", s["liquid_yield"], "", "{:.5f}"),
         _line("work per kg liquid", s["work_kJ_per_kg_liquid"], "kJ/kg", "{:.0f}"),
@@ -243,4 +298,5 @@ def format_optimum(found):
     if "compressor_power_kW" in s:
         lines += [_line("compressor flow", s["compressor_flow_kg_per_h"], "kg/h", "{:.2f}"),
                   _line("compressor power", s["compressor_power_kW"], "kW", "{:.3f}")]
+    lines += [f"note: {note}" for note in found.get("notes", [])]
     return "\n".join(lines)

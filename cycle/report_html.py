@@ -37,21 +37,6 @@ REFERENCES = [
 ]
 
 
-def _unit_of(key):
-    from cycle.plots import axis_label
-
-    label, _ = axis_label(key)
-    return label.rsplit("[", 1)[1].rstrip("]") if "[" in label else ""
-
-
-def _number(value):
-    if value is None:
-        return "-"
-    if isinstance(value, float):
-        return f"{value:.6g}"
-    return html.escape(str(value))
-
-
 def _table(headers, rows, text_columns=()):
     head = "".join(f"<th class='text'>{html.escape(h)}</th>" if k in text_columns else f"<th>{html.escape(h)}</th>"
                    for k, h in enumerate(headers))
@@ -94,9 +79,14 @@ def build_report(result, scenario_text, when=None):
     parts.append("<div class='caution'><b>Safety.</b> " + html.escape(CAUTIONS.replace("safety: ", "", 1))
                  .replace("\n", " ") + "</div>")
 
+    from cycle.report import exergy_rows, number, solve_lines, state_cells, state_columns, summary_sections
+
     parts.append("<h2>Summary</h2>")
-    rows = [(html.escape(key), _number(value), html.escape(_unit_of(key))) for key, value in summary.items()]
-    parts.append(_table(["quantity", "value", "unit"], rows, text_columns=(0, 2)))
+    for title, rows in summary_sections(result):
+        parts.append(f"<h3>{html.escape(title)}</h3>")
+        parts.append(_table(["quantity", "value", "unit"],
+                            [(html.escape(label.strip()), html.escape(value), html.escape(unit))
+                             for label, value, unit in rows], text_columns=(0, 2)))
 
     if result.warnings:
         parts.append("<h2>Warnings</h2>")
@@ -110,28 +100,19 @@ def build_report(result, scenario_text, when=None):
         parts.append(_figure(figure_png(fig), caption))
 
     parts.append("<h2>Streams</h2>")
-    state_rows = []
-    for row in result.state_rows():
-        state_rows.append([str(row["number"]), html.escape(row["stream"]), f"{row['temperature_K']:.2f}",
-                           f"{row['pressure_bar']:.4g}", f"{row['enthalpy_kJ_per_kg']:.2f}",
-                           f"{row['entropy_kJ_per_kg_K']:.4f}",
-                           "" if row["quality"] is None else f"{row['quality']:.4f}", html.escape(row["phase"]),
-                           f"{row['flow_per_kg_compressed']:.4f}",
-                           f"{row['mass_flow_kg_per_h']:.3f}" if "mass_flow_kg_per_h" in row else "-"])
-    parts.append(_table(["#", "stream", "T [K]", "p [bar]", "h [kJ/kg]", "s [kJ/(kg K)]", "quality [-]", "phase",
-                         "flow [per kg compressed]", "flow [kg/h]"], state_rows, text_columns=(1, 7)))
-    parts.append("<p class='meta'>Enthalpy and entropy on CoolProp's reference state for the gas.</p>")
+    states = result.state_rows()
+    columns = state_columns(states)
+    state_rows = [[str(row["number"]), html.escape(row["stream"]), html.escape(row["phase"])]
+                  + [html.escape(c) for c in state_cells(row, columns)] for row in states]
+    parts.append(_table(["#", "stream", "phase"] + [h for h, _, _ in columns], state_rows, text_columns=(1, 2)))
+    parts.append("<p class='meta'>Flow [-] is per kg of compressor flow. Enthalpy and entropy on CoolProp's "
+                 "reference state for the gas.</p>")
 
-    parts.append("<h2>Where the work goes (exergy)</h2>")
-    total = result.work_per_kg_liquid
-    ex_rows = [("ideal work of liquefaction", f"{result.ideal_work_per_kg_liquid / 1e3:.1f}",
-                f"{100 * result.ideal_work_per_kg_liquid / total:.1f}")]
-    ex_rows += [(html.escape(name.replace("_", " ")), f"{value / 1e3:.1f}", f"{100 * value / total:.1f}")
-                for name, value in result.exergy_losses_per_kg_liquid().items()]
-    ex_rows.append(("actual work", f"{total / 1e3:.1f}", "100.0"))
-    parts.append(_table(["", "kJ/kg of liquid", "share [%]"], ex_rows, text_columns=(0,)))
+    parts.append("<h2>Where the work goes (exergy, per kg of liquid)</h2>")
+    parts.append(_table(["", "kJ/kg", "share [%]"],
+                        [(html.escape(label), number(value, "{:.1f}"), number(share, "{:.1f}"))
+                         for label, value, share in exergy_rows(result)], text_columns=(0,)))
 
-    sol = result.solve
     parts.append("<h2>Method</h2>")
     parts.append(
         "<p>Real-gas properties come from CoolProp's reference equations of state. The unit operations "
@@ -141,9 +122,7 @@ def build_report(result, scenario_text, when=None):
         "equation (effectiveness, minimum approach over equal-duty zones, or UA as the sum of zone duty over zone "
         "LMTD). The heat leak is charged at the separator. The exergy destroyed in each unit is the ambient "
         "temperature times its entropy generation; the ideal work plus all losses equals the actual work. "
-        f"This solve: {'converged' if sol.converged else 'NOT converged'} in {sol.iterations} iterations, "
-        f"residual {sol.residual:.2e} {html.escape(sol.residual_unit)}; energy balance residual "
-        f"{result.energy_balance_residual:.1e} of the compressor work.</p>")
+        "This solve:</p><ul>" + "".join(f"<li>{html.escape(line)}</li>" for line in solve_lines(result)) + "</ul>")
     parts.append("<ol>" + "".join(f"<li>{ref}</li>" for ref in REFERENCES) + "</ol>")
 
     parts.append("<h2>Scenario as given</h2>")

@@ -229,7 +229,7 @@ class CycleResult:
         for name, rec in self.recuperators.items():
             out.update({
                 f"{name}_effectiveness": rec.effectiveness,
-                f"{name}_critical_effectiveness": rec.critical_effectiveness,
+                f"{name}_critical_effectiveness": _positive_or_none(rec.critical_effectiveness),
                 f"{name}_min_approach_K": rec.min_approach,
                 f"{name}_min_approach_position": rec.min_approach_position,
                 f"{name}_warm_end_approach_K": rec.warm_end_approach,
@@ -350,6 +350,16 @@ def summary_keys(scenario):
         if coolant:
             keys.append("coolant_kg_per_h")
     return keys
+
+
+def loss_label(name):
+    """Words for an exergy-loss key: ``make_up_mixing`` -> ``make-up mixing``."""
+    return name.replace("make_up", "make-up").replace("_", " ")
+
+
+def _positive_or_none(x):
+    """A critical effectiveness at or below zero means none is needed: throttling alone makes liquid."""
+    return float(x) if x is not None and x > 0 else None
 
 
 def _finite_or_none(x):

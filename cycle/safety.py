@@ -11,5 +11,5 @@ argon or helium released indoors and oxygen enrichment where air or oxygen conde
 with flammable gases (hydrogen, methane). Follow local codes, the gas supplier's safety data
 and licensed engineering practice; have every design checked by a qualified person."""
 
-SHORT_CAUTION = ("Caution: high pressure, cryogenic liquid, oxygen deficiency or enrichment, flammable "
-                 "gases. Design aid only; follow local codes and licensed practice.")
+SHORT_CAUTION = ("Caution: high pressure, cryogenic liquid, oxygen deficiency or enrichment, flammable gases.\n"
+                 "Design aid only; follow local codes and licensed practice (lhsim --help).")

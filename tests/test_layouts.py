@@ -298,7 +298,7 @@ def test_cli_shows_the_breakdown_sorted_with_shares(capsys):
     assert data["summary"]["precooler_duty_kJ_per_kg_compressed"] == 0.0
     assert data["summary"]["compressor_work_kJ_per_kg_liquid"] == pytest.approx(data["summary"]["work_kJ_per_kg_liquid"])
     exergy = data["exergy_losses_kJ_per_kg_liquid"]
-    assert {"compressor", "recuperator", "throttle_valve", "separator", "heat_leak", "makeup_mixing"} <= set(exergy)
+    assert {"compressor", "recuperator", "throttle_valve", "separator", "heat_leak", "make_up_mixing"} <= set(exergy)
     assert data["summary"]["ideal_work_kJ_per_kg_liquid"] + sum(exergy.values()) == pytest.approx(
         data["summary"]["work_kJ_per_kg_liquid"], rel=1e-8)
 

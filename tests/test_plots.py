@@ -156,9 +156,18 @@ def test_report_is_self_contained_html_with_the_numbers(results, tmp_path):
     parser = _Collector()
     parser.feed(page)
     text = " ".join(parser.text)
-    summary = results["nitrogen-bench"].summary()
-    for key in ("liquid_yield", "figure_of_merit", "compressor_power_kW", "liquid_rate_L_per_h"):
-        assert key in text and f"{summary[key]:.6g}" in text
+    # The same labels, values and units as the text output, never raw JSON keys; rows that do
+    # not apply to a simple cycle (precooling) are left out.
+    from cycle.report import format_result, summary_sections
+
+    terminal = format_result(results["nitrogen-bench"])
+    for _, rows in summary_sections(results["nitrogen-bench"]):
+        for label, value, unit in rows:
+            assert f"{label.strip()} {value} {unit}".strip() in text
+            assert label in terminal and value in terminal
+    assert "figure of merit 0.0554" in text and "compressor power 30.803 kW" in text
+    for raw in ("liquid_yield", "figure_of_merit", "compressor_power_kW", "precooling", "_kJ_per_kg"):
+        assert raw not in text.replace("name: Bench", "")
     assert parser.tags.count("img") == 3 and parser.tags.count("table") >= 3
     assert all(src.startswith("data:image/png;base64,") for src in parser.sources)  # no network
     assert "2026-12-01" in text and "lhsim 0.1.0" in text
