@@ -116,6 +116,21 @@ def si_value(value, dimension):
     return value * over / times
 
 
+def display(key, value, dimension=None):
+    """A key's SI value as people read it, in its column's unit: ``212.3 bar``, ``0.85``.
+
+    ``dimension`` picks the unit where the key takes more than one kind of quantity
+    (``production.liquid_rate``); without it such a value is shown in SI."""
+    if dimension is None:
+        kind = key_kind(key)
+        if isinstance(kind, tuple):
+            return f"{value:.6g} (SI)"
+        dimension = kind if kind in COLUMN_UNITS else None
+    if dimension is None:
+        return f"{value:.6g}" if isinstance(value, float) else str(value)
+    return f"{column_value(value, dimension):.6g} {COLUMN_UNITS[dimension][1]}"
+
+
 def parse_column(column):
     """(scenario key, dimension) of a swept-key column name, or None for any other column."""
     for dimension, (suffix, *_) in COLUMN_UNITS.items():

@@ -373,3 +373,88 @@ def test_progress_bar_shows_points_failures_and_time_left(tmp_path, capsys):
     assert "12/12" in shown and "no liquid 6, failed 0" in shown and "<00:00" in shown
     run_sweep(SWEEP, tmp_path / "q.csv", workers=1)  # stderr is not a terminal here: quiet
     assert capsys.readouterr().err == ""
+
+
+# -- what the studies say -----------------------------------------------------------------
+
+def test_an_optimum_on_a_bound_is_flagged_and_taken_at_the_bound(capsys, tmp_path):
+    import yaml
+
+    # With this plant the figure of merit still rises at 150 bar (its best pressure lies above
+    # 300 bar), so a search capped at 150 bar ends on its upper bound.
+    rising = [api.run(dict(BASE, high_pressure=f"{p} bar")).figure_of_merit for p in (140, 150)]
+    assert rising[1] > rising[0]
+    found = optimize(dict(BASE), [("high_pressure", "50 bar", "150 bar")], "max-figure-of-merit")
+    assert found["vary"]["high_pressure"] == 150e5  # the bound itself, not 149.9998 bar
+    assert found["on_bound"] == {"high_pressure": "upper"}
+    assert found["notes"] == ["high_pressure is on the upper bound of the search (150 bar): the best value may "
+                              "lie beyond it; widen --between to look further"]
+    assert found["summary"]["figure_of_merit"] == pytest.approx(rising[1], rel=1e-12)
+    scenario = tmp_path / "s.yaml"
+    scenario.write_text(yaml.safe_dump(BASE))
+    argv = ["optimize", str(scenario), "--vary", "high_pressure", "--between", "50 bar", "150 bar",
+            "--goal", "max-figure-of-merit"]
+    assert cli.main(argv + ["--json"]) == 0
+    out, err = capsys.readouterr()
+    assert err == ""  # no progress display when stderr is not a terminal, and never on stdout
+    data = json.loads(out)
+    assert data["on_bound"] == {"high_pressure": "upper"} and data["notes"] == found["notes"]
+    assert cli.main(argv) == 0
+    text = capsys.readouterr().out
+    assert "150.00 bar  (upper bound)" in text and f"note: {found['notes'][0]}" in text
+
+
+def test_an_interior_optimum_is_not_on_a_bound():
+    # The ideal cycle's best pressure for yield lies near 390 bar (see the inversion-curve test).
+    found = optimize(dict(IDEAL), [("high_pressure", "100 bar", "1000 bar")], "max-yield")
+    assert 300e5 < found["vary"]["high_pressure"] < 700e5
+    assert found["on_bound"] == {} and found["notes"] == []
+
+
+def test_optimize_shows_its_evaluations_on_stderr(capsys):
+    found = optimize(dict(BASE), [("high_pressure", "50 bar", "150 bar")], "max-yield", progress=True)
+    out, err = capsys.readouterr()
+    assert out == ""
+    assert f"optimize: {found['evaluations']} evaluations" in err
+    assert f"best liquid_yield {found['summary']['liquid_yield']:.6g}" in err
+
+
+def test_compare_at_optimum_gives_the_real_reason_and_flags_bounds(capsys, tmp_path):
+    import yaml
+
+    rows = {r["gas"]: r for r in compare(dict(BASE), ["nitrogen", "hydrogen"], at_optimum=True,
+                                         between=("50 bar", "150 bar"))}
+    hydrogen = rows["hydrogen"]
+    assert hydrogen["status"] == "no-liquid" and hydrogen["on_bound"] is None
+    assert "maximum inversion temperature" in hydrogen["message"] and "precooling" in hydrogen["message"]
+    assert "no point of the search made liquid: high_pressure from 50 bar to 150 bar" in hydrogen["message"]
+    nitrogen = rows["nitrogen"]
+    assert nitrogen["high_pressure"] == 150e5 and nitrogen["on_bound"] == "upper"
+    assert nitrogen["note"].startswith("high_pressure is on the upper bound of the search (150 bar)")
+    scenario = tmp_path / "s.yaml"
+    scenario.write_text(yaml.safe_dump(BASE))
+    assert cli.main(["compare", str(scenario), "--gases", "nitrogen,hydrogen", "--at-optimum",
+                     "--between", "50 bar", "150 bar"]) == 0
+    text = capsys.readouterr().out
+    assert "Optimum on a bound of the search (the best pressure may lie outside it):" in text
+    assert f"  nitrogen: {nitrogen['note']}" in text and "maximum inversion temperature" in text
+
+
+@pytest.mark.parametrize("key, message", [
+    ("recuperator", "--vary recuperator: a section cannot be varied; use one of its keys, e.g. recuperator.effectiveness"),
+    ("high_presure", "--vary high_presure: not a scenario key; did you mean high_pressure?"),
+])
+def test_vary_errors_say_vary(capsys, tmp_path, key, message):
+    import yaml
+
+    scenario = tmp_path / "s.yaml"
+    scenario.write_text(yaml.safe_dump(BASE))
+    assert cli.main(["optimize", str(scenario), "--vary", key, "--between", "1", "2", "--goal", "max-yield"]) == 2
+    assert capsys.readouterr().err == f"lhsim: error: {message}\n"
+
+
+def test_optimize_a_volume_rate_keeps_its_unit():
+    # Bounds in L/h are volume flows: the optimiser must not hand them back as kg/s.
+    found = optimize(dict(BASE), [("production.liquid_rate", "5 L/h", "20 L/h")], "max-figure-of-merit")
+    assert found["summary"]["liquid_rate_L_per_h"] == pytest.approx(20.0, rel=1e-9)  # the heat leak weighs less
+    assert found["on_bound"] == {"production.liquid_rate": "upper"}
