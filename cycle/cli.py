@@ -10,10 +10,14 @@ import json
 import math
 import sys
 
+from cycle import __version__
 from cycle.safety import CAUTIONS, SHORT_CAUTION
 
 EXIT_INPUT = 2
 EXIT_NO_LIQUID = 3
+# Each command's --help points to the full cautions, which the top-level --help carries once.
+SAFETY_POINTER = ("safety: high pressure, cryogenic liquid, oxygen deficiency or enrichment, flammable gases; "
+                  "read the cautions in lhsim --help")
 
 
 class _Formatter(argparse.RawDescriptionHelpFormatter):
@@ -25,6 +29,7 @@ def _parser():
         prog="lhsim",
         description="Simulate Linde-Hampson gas liquefaction cycles with real-gas properties.",
         epilog=CAUTIONS, formatter_class=_Formatter)
+    parser.add_argument("--version", action="version", version=f"lhsim {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     sub.required = True
 
@@ -32,21 +37,23 @@ def _parser():
         "run", help="solve one scenario file and print its design point",
         description="Solve a scenario (YAML) and print the liquid yield, work, figure of merit, "
                     "sizing and the state table of every stream.",
-        epilog=CAUTIONS + "\n\nexit status: 0 solved; 2 invalid scenario; 3 the cycle makes no liquid.",
+        epilog=SAFETY_POINTER + "\n\nexit status: 0 solved; 2 invalid scenario; 3 the cycle makes no liquid.",
         formatter_class=_Formatter)
     run.add_argument("scenario", metavar="SCENARIO.yaml", help="scenario file")
     run.add_argument("--json", action="store_true",
                      help="print one JSON object and nothing else: scenario (SI), layout, summary, "
                           "exergy_losses_kJ_per_kg_liquid, states, warnings, solve, recuperator_profiles")
     run.add_argument("--plots", metavar="DIR",
-                     help="also write the T-s diagram, recuperator profiles and loss chart (PNG and SVG) into DIR")
+                     help="also write the T-s diagram, recuperator profiles and loss chart (PNG and SVG) into DIR, "
+                          "named after the scenario file (SCENARIO-ts-diagram.png, ...); DIR is made if missing "
+                          "and checked before the solve")
 
     report = sub.add_parser(
         "report", help="one self-contained HTML report of a scenario (figures embedded)",
         description="Solve a scenario and write one HTML file with the scenario as given, the summary with "
                     "units, the state and exergy tables, warnings, the figures, the method and references, "
                     "and the safety cautions. It needs no network to view.",
-        epilog=CAUTIONS, formatter_class=_Formatter)
+        epilog=SAFETY_POINTER, formatter_class=_Formatter)
     report.add_argument("scenario", metavar="SCENARIO.yaml")
     report.add_argument("--out", required=True, metavar="FILE.html")
 
@@ -54,7 +61,7 @@ def _parser():
         "plot", help="chart sweep results: one quantity against another, a line per category",
         description="Draw a column of a sweep results file against another, one line per value of --by; "
                     "points that made no liquid or failed are marked along the bottom axis.",
-        epilog=CAUTIONS, formatter_class=_Formatter)
+        epilog=SAFETY_POINTER, formatter_class=_Formatter)
     plot.add_argument("results", metavar="RESULTS.csv", help="results of lhsim sweep (.csv or .parquet)")
     plot.add_argument("--x", required=True, metavar="KEY")
     plot.add_argument("--y", required=True, metavar="KEY")
@@ -65,10 +72,11 @@ def _parser():
     sweep = sub.add_parser(
         "sweep", help="run every point of a scenario's sweep section into a CSV or Parquet file",
         description="Run every point of the scenario's sweep: section (a grid, or zip-paired lists) and "
-                    "write one row per point: the swept values (SI), status, message and every summary key. "
+                    "write one row per point: the swept values (quantities in the summary keys' units, the unit at the "
+                    "end of the column name: high_pressure_bar), status, message and every summary key. "
                     "Rows reach the file as points finish; run the same command again after an "
                     "interruption to compute only the missing points.",
-        epilog=CAUTIONS + "\n\nexit status: 0 the sweep ran (failed points say so in their status); "
+        epilog=SAFETY_POINTER + "\n\nexit status: 0 the sweep ran (failed points say so in their status); "
                           "2 invalid scenario or sweep; 130 interrupted (results so far are kept).",
         formatter_class=_Formatter)
     sweep.add_argument("scenario", metavar="SCENARIO.yaml", help="scenario file with a sweep: section")
@@ -84,7 +92,7 @@ def _parser():
         "compare", help="the same plant with several gases, ranked by figure of merit",
         description="Solve the scenario once per gas and rank the gases by figure of merit, with yield, "
                     "work per kg of liquid and, with a production target, compressor flow and power.",
-        epilog=CAUTIONS, formatter_class=_Formatter)
+        epilog=SAFETY_POINTER, formatter_class=_Formatter)
     compare.add_argument("scenario", metavar="SCENARIO.yaml")
     compare.add_argument("--gases", required=True, metavar="LIST", help="comma-separated, e.g. nitrogen,argon,methane")
     compare.add_argument("--at-optimum", action="store_true",
@@ -97,7 +105,7 @@ def _parser():
         "optimize", help="the value of one or more keys that gives the most liquid or the least work",
         description="Search the scenario key(s) given by --vary within --between bounds for the goal; "
                     "one key by a bounded Brent search, several by Powell's method with bounds.",
-        epilog=CAUTIONS + "\n\ngoals: max-yield, min-work-per-liquid, max-figure-of-merit.",
+        epilog=SAFETY_POINTER + "\n\ngoals: max-yield, min-work-per-liquid, max-figure-of-merit.",
         formatter_class=_Formatter)
     optimize.add_argument("scenario", metavar="SCENARIO.yaml")
     optimize.add_argument("--vary", action="append", required=True, metavar="KEY",
@@ -111,14 +119,19 @@ def _parser():
 
     gas = sub.add_parser(
         "gas", help="properties of a gas at one state: Joule-Thomson coefficient, inversion, saturation",
-        description="Print the state of a gas at a temperature and pressure, its Joule-Thomson "
-                    "coefficient, saturation temperature, inversion temperatures at that pressure and "
-                    "its maximum inversion temperature.",
-        epilog=CAUTIONS + "\n\nQuantities take units ('300 K', '27 degC', '1 bar'); bare numbers are SI (K, Pa).",
+        description="Print the state of a gas at a temperature and pressure (or a saturated state: a "
+                    "vapour quality with a pressure or a temperature), its Joule-Thomson coefficient, "
+                    "saturation temperature, inversion temperatures at that pressure and its maximum "
+                    "inversion temperature.",
+        epilog=SAFETY_POINTER + "\n\nQuantities take units ('300 K', '27 degC', '1 bar'); bare numbers are SI (K, Pa)."
+                              "\nA saturated state: --quality Q with -p or -T (Q = 0 saturated liquid, 1 saturated "
+                              "vapour);\nits Joule-Thomson coefficient is the two-phase one, dT_sat/dp.",
         formatter_class=_Formatter)
     gas.add_argument("name", metavar="NAME", help="gas name, e.g. nitrogen, argon, methane, air, hydrogen")
-    gas.add_argument("--temperature", "-T", required=True, metavar="T", help="temperature, e.g. '300 K'")
-    gas.add_argument("--pressure", "-p", required=True, metavar="P", help="pressure, e.g. '1 bar'")
+    gas.add_argument("--temperature", "-T", metavar="T", help="temperature, e.g. '300 K'")
+    gas.add_argument("--pressure", "-p", metavar="P", help="pressure, e.g. '1 bar'")
+    gas.add_argument("--quality", "-x", metavar="Q",
+                     help="vapour mass fraction from 0 to 1 of a saturated state, with -p or -T (not both)")
     gas.add_argument("--json", action="store_true", help="print one JSON object and nothing else")
     return parser
 
@@ -152,10 +165,41 @@ def _json_safe(value):
     return value
 
 
+def _plots_folder_problem(folder):
+    """Why ``folder`` cannot take the figures (None if it can): it must be a directory lhsim
+    can write into, or one it can make."""
+    import os
+    import pathlib
+    import tempfile
+
+    path = pathlib.Path(folder)
+    if path.exists():
+        if not path.is_dir():
+            return "it exists and is not a directory"
+        try:
+            with tempfile.TemporaryFile(dir=path):
+                pass
+        except OSError as err:
+            return f"cannot write into it ({err.strerror or err})"
+        return None
+    parent = path.absolute().parent
+    while not parent.exists():
+        parent = parent.parent
+    if not parent.is_dir():
+        return f"cannot make it: {parent} is not a directory"
+    if not os.access(parent, os.W_OK | os.X_OK):
+        return f"cannot make it: {parent} is not writable"
+    return None
+
+
 def _cmd_run(args):
     from cycle.errors import NoLiquefactionError, ScenarioError
     from cycle.scenario import load_scenario
 
+    if args.plots:
+        problem = _plots_folder_problem(args.plots)
+        if problem:
+            return _fail(f"--plots must name a directory lhsim can write into, got {args.plots}: {problem}")
     try:
         scenario = load_scenario(args.scenario)
         if "sweep" in scenario.source or "sweep" in _read(args.scenario):
@@ -178,8 +222,10 @@ def _cmd_run(args):
     if args.plots:
         from cycle.plots import write_figures
 
+        import pathlib
+
         try:
-            paths = write_figures(result, args.plots)
+            paths = write_figures(result, args.plots, stem=pathlib.Path(args.scenario).stem)
         except OSError as err:
             return _fail(f"--plots: cannot write into {args.plots}: {err.strerror}")
         print(f"lhsim: wrote {len(paths)} figures into {args.plots}", file=sys.stderr)
@@ -335,14 +381,32 @@ def _cmd_optimize(args):
 def _cmd_gas(args):
     from cycle.units import UnitError, parse_quantity
 
-    try:
-        T = parse_quantity(args.temperature, "temperature")
-    except UnitError as err:
-        return _fail(f"--temperature: {err}")
-    try:
-        p = parse_quantity(args.pressure, "pressure")
-    except UnitError as err:
-        return _fail(f"--pressure: {err}")
+    quality = T = p = None
+    if args.quality is not None:
+        if (args.temperature is None) == (args.pressure is None):
+            given = "both" if args.temperature is not None else "neither"
+            return _fail(f"--quality needs one of --temperature or --pressure (a saturated state is fixed by "
+                         f"either), got {given}")
+        try:
+            quality = parse_quantity(args.quality, "dimensionless")
+        except UnitError as err:
+            return _fail(f"--quality: {err}")
+        if not 0.0 <= quality <= 1.0:
+            return _fail(f"--quality must be from 0 (saturated liquid) to 1 (saturated vapour), got {args.quality}")
+    elif args.temperature is None or args.pressure is None:
+        missing = " and ".join(o for o, v in (("--temperature", args.temperature), ("--pressure", args.pressure))
+                               if v is None)
+        return _fail(f"give --temperature and --pressure, or one of them with --quality; missing {missing}")
+    if args.temperature is not None:
+        try:
+            T = parse_quantity(args.temperature, "temperature")
+        except UnitError as err:
+            return _fail(f"--temperature: {err}")
+    if args.pressure is not None:
+        try:
+            p = parse_quantity(args.pressure, "pressure")
+        except UnitError as err:
+            return _fail(f"--pressure: {err}")
     from properties import PropertyRangeError, get_fluid
 
     try:
@@ -350,18 +414,32 @@ def _cmd_gas(args):
     except ValueError as err:
         return _fail(f"NAME: {err}")
     try:
-        info = gas_properties(fluid, T, p)
+        info = gas_properties(fluid, T, p, quality)
     except PropertyRangeError as err:
+        if quality is not None:
+            return _fail(f"{'--pressure' if p is not None else '--temperature'} with --quality: {err}")
         return _fail(str(err))
     return _emit(args, info, "format_gas")
 
 
-def gas_properties(fluid, T, p):
-    """Everything ``lhsim gas`` reports, as a dictionary with units in the key names."""
+def gas_properties(fluid, T=None, p=None, quality=None):
+    """Everything ``lhsim gas`` reports, as a dictionary with units in the key names.
+
+    With ``quality`` [-] and one of ``T`` [K] or ``p`` [Pa], the saturated state; its
+    Joule-Thomson coefficient is then the two-phase one: at constant enthalpy inside the dome
+    temperature follows the saturation line, so (dT/dp)_h = dT_sat/dp = T (v_g - v_f) / (h_g - h_f)
+    (the Clausius-Clapeyron relation).
+    """
     from properties import PropertyRangeError
 
-    st = fluid.state_tp(T, p)
-    T_sat = fluid.saturation_temperature(p)
+    if quality is None:
+        st = fluid.state_tp(T, p)
+        jt = fluid.jt_coefficient(T, p)
+    else:
+        st = fluid.saturated_state(quality, p=p, T=T)
+        liquid, vapour = fluid.saturated_state(0.0, p=st.p), fluid.saturated_state(1.0, p=st.p)
+        jt = st.T * (1.0 / vapour.density - 1.0 / liquid.density) / (vapour.h - liquid.h)
+    T_sat = fluid.saturation_temperature(st.p)
     try:
         T_inv_max = fluid.max_inversion_temperature()
     except PropertyRangeError:  # no root of T dB/dT - B within the search range
@@ -371,19 +449,19 @@ def gas_properties(fluid, T, p):
         "temperature_K": st.T,
         "pressure_bar": st.p / 1e5,
         "phase": st.phase,
+        "quality": st.quality if quality is not None else None,
         "density_kg_per_m3": st.density,
         "enthalpy_kJ_per_kg": st.h / 1e3,
         "entropy_kJ_per_kg_K": st.s / 1e3,
-        "jt_coefficient_K_per_bar": fluid.jt_coefficient(T, p) * 1e5,
+        "jt_coefficient_K_per_bar": jt * 1e5,
         "saturation_temperature_K": T_sat,
-        "inversion_temperatures_K": list(fluid.inversion_temperatures(p)),
+        "inversion_temperatures_K": list(fluid.inversion_temperatures(st.p)),
         "max_inversion_temperature_K": T_inv_max,
         "critical_temperature_K": fluid.T_critical,
         "critical_pressure_bar": fluid.p_critical / 1e5,
         "triple_point_temperature_K": fluid.T_triple,
         "triple_point_pressure_bar": fluid.p_triple / 1e5,
     }
-
 
 
 def main_exit():

@@ -124,14 +124,21 @@ def _edges(names):
                 "warm recuperator low-pressure outlet"]
         edges += [("isobar", a, b) for a, b in zip(back, back[1:])]
         ret = back[-1]
-    elif has("first valve outlet (intermediate pressure)"):  # dual pressure
+    elif has("first valve outlet (intermediate pressure)") or has("first valve outlet, intermediate receiver inlet"):
         hp_out = "recuperator high-pressure outlet, first valve inlet"
-        mid = "first valve outlet (intermediate pressure)"
         sep_in = "second valve outlet, separator inlet"
         vapour = "separator vapour, recuperator low-pressure inlet"
-        edges += [("isobar", after, hp_out), ("isenthalp", hp_out, mid), ("isenthalp", mid, sep_in),
+        if has("first valve outlet (intermediate pressure)"):  # dual pressure above the critical pressure
+            mid = back = feed = "first valve outlet (intermediate pressure)"
+            edges += [("isenthalp", hp_out, mid)]
+        else:  # with the intermediate receiver
+            mid = "first valve outlet, intermediate receiver inlet"
+            back = "receiver return, recuperator intermediate-pressure inlet"
+            feed = "receiver outflow, second valve inlet"
+            edges += [("isenthalp", hp_out, mid), ("split", mid, back), ("split", mid, feed)]
+        edges += [("isobar", after, hp_out), ("isenthalp", feed, sep_in),
                   ("isobar", vapour, "recuperator low-pressure outlet"),
-                  ("isobar", mid, "recuperator intermediate-pressure outlet"),
+                  ("isobar", back, "recuperator intermediate-pressure outlet"),
                   ("mixing", "recuperator intermediate-pressure outlet", "intermediate mixing outlet, high-pressure section suction")]
         ret = "recuperator low-pressure outlet"
     else:
@@ -532,17 +539,34 @@ def save(fig, path):
     plt.close(fig)
 
 
-def write_figures(result, folder, formats=("png", "svg")):
-    """Write every figure of a result into ``folder``; return the paths written."""
+def figure_stem(result):
+    """A file-name stem for a result's figures when no scenario file names it: the scenario's
+    name in lower case, runs of other characters as one hyphen (``scenario`` if it has none)."""
+    import re
+
+    return re.sub(r"[^a-z0-9]+", "-", (result.scenario.name or "").lower()).strip("-") or "scenario"
+
+
+def write_figures(result, folder, formats=("png", "svg"), stem=None):
+    """Write every figure of a result into ``folder`` as ``{stem}-{figure}.{format}``
+    (``nitrogen-bench-ts-diagram.png``), so that the figures of two scenarios never overwrite
+    each other; return the paths written.
+
+    Parameters
+    ----------
+    stem : str, optional
+        Usually the scenario file's stem; default :func:`figure_stem`.
+    """
     import pathlib
 
     folder = pathlib.Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
+    stem = stem or figure_stem(result)
     paths = []
     for name, draw in FIGURES.items():
         fig, _ = draw(result)
         for fmt in formats:
-            path = folder / f"{name}.{fmt}"
+            path = folder / f"{stem}-{name}.{fmt}"
             fig.savefig(path, bbox_inches="tight")
             paths.append(path)
         import matplotlib.pyplot as plt

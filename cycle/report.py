@@ -223,12 +223,15 @@ def format_gas(info):
     inv = info["inversion_temperatures_K"]
     inv_text = ", ".join(f"{t:.1f}" for t in inv) if inv else "none (mu_JT keeps one sign along this isobar)"
     sat = info["saturation_temperature_K"]
+    quality = info.get("quality")
+    phase = info["phase"] if quality is None or quality in (0.0, 1.0) else f"{info['phase']}, quality {quality:g}"
+    jt_label = "Joule-Thomson coefficient " + ("(dT_sat/dp)" if quality is not None else "(dT/dp)_h")
     lines = [
-        f"{info['gas']} at {info['temperature_K']:g} K and {info['pressure_bar']:g} bar ({info['phase']})",
+        f"{info['gas']} at {info['temperature_K']:g} K and {info['pressure_bar']:g} bar ({phase})",
         _line("density", info["density_kg_per_m3"], "kg/m3"),
         _line("enthalpy (CoolProp reference state)", info["enthalpy_kJ_per_kg"], "kJ/kg", "{:.3f}"),
         _line("entropy (CoolProp reference state)", info["entropy_kJ_per_kg_K"], "kJ/(kg K)", "{:.4f}"),
-        _line("Joule-Thomson coefficient (dT/dp)_h", info["jt_coefficient_K_per_bar"], "K/bar", "{:.4f}"),
+        _line(jt_label, info["jt_coefficient_K_per_bar"], "K/bar", "{:.4f}"),
         _line("saturation temperature at this pressure",
               sat if sat is not None else "none (supercritical)", "K" if sat is not None else "", "{:.3f}"),
         f"  {'inversion temperatures at this pressure':<44s} {inv_text}{' K' if inv else ''}",

@@ -225,6 +225,39 @@ class Fluid:
             return None
         return self.saturated_liquid(p).T
 
+    def saturated_state(self, quality, p=None, T=None):
+        """Saturated state of vapour mass fraction ``quality`` [-] (0 liquid, 1 vapour) at
+        pressure ``p`` [Pa] or temperature ``T`` [K] (give one).
+
+        Raises :class:`PropertyRangeError` for a quality outside [0, 1], or a pressure or
+        temperature outside the saturation line (from the triple point up to, not including,
+        the critical point).  For pseudo-pure air CoolProp takes the bubble point at quality 0
+        and the dew point at 1.
+        """
+        if (p is None) == (T is None):
+            raise TypeError("give exactly one of p and T")
+        at = f"p = {_fmt_p(p)}" if p is not None else f"T = {_fmt_T(T)}"
+        asked = f"quality {quality!r}, {at}"
+        if not _is_number(quality) or not 0.0 <= quality <= 1.0:
+            self._fail(asked, "the quality (vapour mass fraction) must be from 0 to 1")
+        if p is not None:
+            self._check_p(p, asked)
+            if p >= self.p_critical:
+                self._fail(asked, f"no saturation at or above the critical pressure {_fmt_p(self.p_critical)}")
+            if p < self.p_triple:
+                self._fail(asked, f"no liquid below the triple-point pressure {_fmt_p(self.p_triple)}")
+            self._update(CP.PQ_INPUTS, p, quality, asked)
+        else:
+            if not _is_number(T) or not math.isfinite(T) or T <= 0:
+                self._fail(asked, "temperature must be a positive finite number")
+            if T >= self.T_critical:
+                self._fail(asked, f"no saturation at or above the critical temperature {_fmt_T(self.T_critical)}")
+            if T < self.T_triple:
+                self._fail(asked, f"no liquid below the triple-point temperature {_fmt_T(self.T_triple)}")
+            self._update(CP.QT_INPUTS, quality, T, asked)
+        st = self._snapshot(p)
+        return State(self.name, st.T, st.p, st.h, st.s, st.density, float(quality), two_phase_label(float(quality)))
+
     def states_ph(self, pressures, enthalpies, guesses=None):
         """Many (p, h) states in one call: the march along an exchanger side.
 

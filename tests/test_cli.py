@@ -112,14 +112,38 @@ def test_gas_text_and_errors(capsys):
     assert code == 2 and "melting" in err and err.count("\n") == 1
 
 
-@pytest.mark.parametrize("argv", [["--help"], ["run", "--help"], ["gas", "--help"]])
-def test_help_carries_the_cautions(capsys, argv):
+def help_text(capsys, argv):
     with pytest.raises(SystemExit) as info:
         cli.main(argv)
     assert info.value.code == 0
-    out = capsys.readouterr().out
+    return capsys.readouterr().out
+
+
+def test_top_level_help_carries_the_cautions_once(capsys):
+    from cycle.safety import CAUTIONS
+
+    out = help_text(capsys, ["--help"])
+    assert out.count(CAUTIONS) == 1
     for word in ("high", "pressure", "cryogenic", "oxygen deficiency", "enrichment", "flammable", "local codes"):
         assert word in out
+
+
+@pytest.mark.parametrize("command", ["run", "report", "plot", "sweep", "compare", "optimize", "gas"])
+def test_each_command_help_points_to_the_cautions_in_one_line(capsys, command):
+    from cycle.safety import CAUTIONS
+
+    out = help_text(capsys, [command, "--help"])
+    assert CAUTIONS.splitlines()[0] not in out  # the paragraph is not repeated
+    pointer = [line for line in out.splitlines() if line.startswith("safety:")]
+    assert pointer == [cli.SAFETY_POINTER]
+    for word in ("high pressure", "cryogenic", "oxygen deficiency", "enrichment", "flammable", "lhsim --help"):
+        assert word in pointer[0]
+
+
+def test_version(capsys):
+    from cycle import __version__
+
+    assert help_text(capsys, ["--version"]) == f"lhsim {__version__}\n"
 
 
 def test_console_entry_point_in_a_real_process(tmp_path):
@@ -149,3 +173,71 @@ def test_gas_without_a_maximum_inversion_temperature_in_range(capsys):
     # R134a: T dB/dT - B has no root below three times CoolProp's upper temperature.
     code, out, _ = run(capsys, "gas", "R134a", "-T", "300 K", "-p", "1 bar", "--json")
     assert code == 0 and json.loads(out)["max_inversion_temperature_K"] is None
+
+
+# -- saturated states by quality -----------------------------------------------------------
+
+def gas_json(capsys, *argv):
+    code, out, err = run(capsys, "gas", *argv, "--json")
+    assert code == 0 and err == "", err
+    return json.loads(out)
+
+
+def test_gas_saturated_state_by_pressure_and_quality(capsys):
+    liquid = gas_json(capsys, "nitrogen", "-p", "1 atm", "--quality", "0")
+    vapour = gas_json(capsys, "nitrogen", "-p", "1 atm", "--quality", "1")
+    half = gas_json(capsys, "nitrogen", "-p", "1 atm", "--quality", "0.5")
+    # Nitrogen at 1 atm: normal boiling point 77.355 K, saturated liquid 806.08 kg/m3, latent heat
+    # 199.2 kJ/kg (NIST Chemistry WebBook, fluid properties, from the Span et al. 2000 equation of
+    # state that CoolProp implements; density and latent heat from memory). Tolerances: the
+    # printed digits of the source.
+    assert liquid["temperature_K"] == pytest.approx(77.355, abs=0.001)
+    assert liquid["density_kg_per_m3"] == pytest.approx(806.08, abs=0.05)
+    assert vapour["enthalpy_kJ_per_kg"] - liquid["enthalpy_kJ_per_kg"] == pytest.approx(199.2, abs=0.1)
+    assert liquid["phase"] == "saturated liquid" and vapour["phase"] == "saturated vapour"
+    assert half["phase"] == "two-phase" and half["quality"] == 0.5
+    # The lever rule: h at x = 0.5 is the mean of the saturated ends (a law, to round-off).
+    assert half["enthalpy_kJ_per_kg"] == pytest.approx(
+        0.5 * (liquid["enthalpy_kJ_per_kg"] + vapour["enthalpy_kJ_per_kg"]), rel=1e-9)
+
+
+def test_gas_saturated_state_by_temperature_and_quality(capsys):
+    state = gas_json(capsys, "argon", "-T", "87.302 K", "-x", "25 %")
+    # Argon's normal boiling point is 87.302 K at 1.01325 bar (NIST Chemistry WebBook, Tegeler
+    # et al. 1999 equation of state; from memory): the saturation pressure found from T.
+    assert state["pressure_bar"] == pytest.approx(1.01325, rel=2e-5)
+    assert state["quality"] == 0.25 and state["saturation_temperature_K"] == pytest.approx(87.302, abs=1e-6)
+
+
+def test_two_phase_joule_thomson_coefficient_is_the_slope_of_the_saturation_line(capsys):
+    from properties import get_fluid
+
+    # Inside the dome T follows the saturation line, so (dT/dp)_h = dT_sat/dp (Clausius-
+    # Clapeyron); checked against a central difference of CoolProp's saturation temperature,
+    # whose truncation error at +-0.01 bar is far below the 1e-5 tolerance.
+    state = gas_json(capsys, "nitrogen", "-p", "2 bar", "-x", "0.3")
+    fluid = get_fluid("nitrogen")
+    slope = (fluid.saturation_temperature(2.01e5) - fluid.saturation_temperature(1.99e5)) / 0.02  # K/bar
+    assert state["jt_coefficient_K_per_bar"] == pytest.approx(slope, rel=1e-5)
+    code, out, _ = run(capsys, "gas", "nitrogen", "-p", "2 bar", "-x", "0.3")
+    assert code == 0 and "(two-phase, quality 0.3)" in out and "Joule-Thomson coefficient (dT_sat/dp)" in out
+
+
+@pytest.mark.parametrize("argv, message", [
+    (["-p", "40 bar", "-x", "0.5"], "--pressure with --quality: Nitrogen: no state at quality 0.5, p = 40 bar: no "
+                                    "saturation at or above the critical pressure 33.958 bar"),
+    (["-T", "130 K", "-x", "1"], "--temperature with --quality: Nitrogen: no state at quality 1.0, T = 130 K: no "
+                                 "saturation at or above the critical temperature 126.192 K"),
+    (["-T", "50 K", "-x", "0"], "no liquid below the triple-point temperature 63.151 K"),
+    (["-x", "0.5"], "--quality needs one of --temperature or --pressure (a saturated state is fixed by either), "
+                    "got neither"),
+    (["-T", "80 K", "-p", "1 bar", "-x", "0.5"], "--quality needs one of --temperature or --pressure (a saturated "
+                                                 "state is fixed by either), got both"),
+    (["-p", "1 bar", "-x", "1.5"], "--quality must be from 0 (saturated liquid) to 1 (saturated vapour), got 1.5"),
+    (["-p", "1 bar", "-x", "half"], "--quality: expected a number followed by a unit, got 'half'"),
+    (["-T", "300 K"], "give --temperature and --pressure, or one of them with --quality; missing --pressure"),
+])
+def test_gas_quality_errors(capsys, argv, message):
+    code, out, err = run(capsys, "gas", "nitrogen", *argv)
+    assert code == 2 and out == "" and err.count("\n") == 1
+    assert err.startswith("lhsim: error: ") and message in err

@@ -62,8 +62,8 @@ def test_throttle_path_keeps_enthalpy_and_falls_into_the_dome(results):
 
 @pytest.mark.parametrize("name", [p.stem for p in DEMOS])
 def test_every_figure_for_every_demo_is_a_real_image(results, name, tmp_path):
-    paths = plots.write_figures(results[name], tmp_path)
-    assert sorted(p.name for p in paths) == sorted(f"{f}.{ext}" for f in plots.FIGURES for ext in ("png", "svg"))
+    paths = plots.write_figures(results[name], tmp_path, stem=name)
+    assert sorted(p.name for p in paths) == sorted(f"{name}-{f}.{ext}" for f in plots.FIGURES for ext in ("png", "svg"))
     for path in paths:
         if path.suffix == ".png":
             assert_real_png(path)
@@ -131,8 +131,45 @@ def test_sweep_chart_draws_the_results(tmp_path, capsys):
 
 
 def test_run_plots_option(tmp_path, capsys):
-    assert cli.main(["run", "scenarios/air-dual-pressure.yaml", "--plots", str(tmp_path / "figs")]) == 0
-    assert len(list((tmp_path / "figs").iterdir())) == 6
+    figs = tmp_path / "new" / "figs"  # made, parents too
+    assert cli.main(["run", "scenarios/air-dual-pressure.yaml", "--plots", str(figs)]) == 0
+    assert cli.main(["run", "scenarios/nitrogen-bench.yaml", "--plots", str(figs)]) == 0
+    names = sorted(p.name for p in figs.iterdir())  # two scenarios, one folder: nothing overwritten
+    assert names == sorted(f"{stem}-{f}.{ext}" for stem in ("air-dual-pressure", "nitrogen-bench")
+                           for f in plots.FIGURES for ext in ("png", "svg"))
+    assert plots.figure_stem(api.run("scenarios/nitrogen-bench.yaml")) == "bench-nitrogen-liquefier-10-l-h"
+
+
+@pytest.fixture
+def no_solve(monkeypatch):
+    """Fail loudly if the scenario is solved: the --plots check must come first."""
+    import cycle.flowsheet
+
+    def solve(*args, **kwargs):
+        raise AssertionError("solved before --plots was checked")
+
+    monkeypatch.setattr(cycle.flowsheet, "solve_scenario", solve)
+
+
+def test_plots_folder_is_checked_before_the_solve(tmp_path, capsys, no_solve, monkeypatch):
+    a_file = tmp_path / "figures"
+    a_file.write_text("not a folder")
+    cases = [(a_file, "it exists and is not a directory"),
+             (a_file / "sub", f"cannot make it: {a_file} is not a directory")]
+    for folder, reason in cases:
+        assert cli.main(["run", "scenarios/nitrogen-bench.yaml", "--plots", str(folder)]) == 2
+        out, err = capsys.readouterr()
+        assert out == ""
+        assert err == f"lhsim: error: --plots must name a directory lhsim can write into, got {folder}: {reason}\n"
+    import tempfile
+
+    def refuse(*args, **kwargs):
+        raise PermissionError(13, "Permission denied")
+
+    monkeypatch.setattr(tempfile, "TemporaryFile", refuse)  # as if the folder were read-only
+    assert cli.main(["run", "scenarios/nitrogen-bench.yaml", "--plots", str(tmp_path)]) == 2
+    assert capsys.readouterr().err == (f"lhsim: error: --plots must name a directory lhsim can write into, got "
+                                       f"{tmp_path}: cannot write into it (Permission denied)\n")
 
 
 class _Collector(html.parser.HTMLParser):
