@@ -1,6 +1,6 @@
 """Make the figures shown in docs/figures.md and the README from the demo scenarios.
 
-Run from the repository root:  python docs/make_figures.py
+Run from the repository root:  python docs/make_figures.py   (or ... sweep: only the sweep charts)
 """
 
 import pathlib
@@ -24,8 +24,8 @@ SWEEP = {
 }
 
 
-def main():
-    IMG.mkdir(parents=True, exist_ok=True)
+def demo_figures():
+    """The figures of the demo scenarios, named as ``lhsim run --plots`` names them."""
     written = []
     for stem, figures in (("nitrogen-bench", ("ts-diagram", "exchanger-profiles", "losses")),
                           ("hydrogen-ln2-precooled", ("ts-diagram", "exchanger-profiles")),
@@ -36,6 +36,12 @@ def main():
             path = IMG / f"{stem}-{name}.png"
             plots.save(fig, path)
             written.append(path)
+    return written
+
+
+def sweep_figures():
+    """The sweep charts: a results file made in a temporary folder, drawn by its bare key."""
+    written = []
     with tempfile.TemporaryDirectory() as tmp:
         out = pathlib.Path(tmp) / "sweep.csv"
         run_sweep(SWEEP, out, workers=2, progress=False)
@@ -47,6 +53,15 @@ def main():
         path = IMG / f"sweep-{y}-vs-high_pressure.png"
         plots.save(fig, path)
         written.append(path)
+    return written
+
+
+def main(argv=None):
+    """``python docs/make_figures.py`` makes every figure; ``... sweep`` only the sweep charts."""
+    argv = sys.argv[1:] if argv is None else argv
+    IMG.mkdir(parents=True, exist_ok=True)
+    written = [] if argv == ["sweep"] else demo_figures()
+    written += sweep_figures()
     for path in written:
         print(f"wrote {path.relative_to(ROOT)}")
 
