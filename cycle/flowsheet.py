@@ -650,7 +650,7 @@ class Liquefier:
 
     def _finish(self, *, y, m, streams, compressions, after_duty, makeup, liquid, throttle_outlet,
                 recuperators, reports, losses, precooling_work=0.0, precooler_duty=0.0, coolant=None,
-                warn=()):
+                warn=(), receiver_vapour_fraction=None):
         sc = self.scenario
         warn = list(warn)
         comp_work = sum(flow * c.work for c, flow in compressions)
@@ -685,7 +685,8 @@ class Liquefier:
             states=states, throttle_outlet=throttle_outlet, compressor_flow=m,
             energy_balance_residual=balance, solve=_combined_report(reports.values()), sections=reports,
             exergy_losses=losses, precooling_work_per_kg_compressed=precooling_work,
-            precooler_duty=precooler_duty, coolant_per_kg_compressed=coolant, warnings=warn)
+            precooler_duty=precooler_duty, coolant_per_kg_compressed=coolant, warnings=warn,
+            receiver_vapour_fraction=receiver_vapour_fraction)
 
     def _warm_end(self, ret, y):
         """Make-up mixing, compression and aftercooling of the return gas ``ret`` (flow 1 - y).

@@ -155,19 +155,46 @@ class DualPressureLindeHampson(Liquefier):
         self.first_valve = ThrottleValve(self.intermediate_pressure)
         self.mixer = MakeupMixer(self.suction_pressure, sc.ambient_temperature, sc.low_pressure)
 
+    def _receiver(self):
+        """Saturated liquid and vapour of the intermediate receiver, or None above the critical
+        pressure (where the first valve's outlet is one phase and nothing separates)."""
+        fl, p_i = self.fluid, self.intermediate_pressure
+        if p_i >= fl.p_critical * (1 - 1e-6):
+            return None
+        return fl.saturated_liquid(p_i), fl.saturated_vapour(p_i)
+
+    def _split(self, h_mid, sat):
+        """What the intermediate receiver does with the first valve's outflow at ``h_mid`` [J/kg].
+
+        The fraction i goes back through the recuperator, vapour first; the rest, liquid first,
+        goes on to the second valve.  Returns (enthalpy returned, enthalpy to the second valve
+        [J/kg], vapour fraction of the outflow or None where it is one phase).  Continuous in
+        ``h_mid``, as the recycle solve needs.
+        """
+        i = self.i
+        if sat is None:
+            return h_mid, h_mid, None  # above the critical pressure: a plain tee
+        liquid, vapour = sat
+        if not liquid.h <= h_mid <= vapour.h:  # all liquid or all vapour: it leaves as it came
+            return h_mid, h_mid, 0.0 if h_mid < liquid.h else 1.0
+        q = (h_mid - liquid.h) / (vapour.h - liquid.h)
+        h_back = vapour.h if q >= i else (q * vapour.h + (i - q) * liquid.h) / i
+        return h_back, (h_mid - i * h_back) / (1.0 - i), q
+
     def _solve(self, xtol, maxiter):
         fl, sc, rec, i = self.fluid, self.scenario, self.recuperator, self.i
         hot_in, liquid, vapour = self._fixed_states(self.suction_pressure)
         self._check_inversion(hot_in, self.suction_pressure)
         yield_at, flow_at = self._yield_function(liquid, vapour, feed_flow=1.0 - i)
         p_i = self.intermediate_pressure
+        sat = self._receiver()
 
         def yield_of(duty):
-            return yield_at(hot_in.h - duty)
+            return yield_at(self._split(hot_in.h - duty, sat)[1])
 
         def colds_of(duty):
-            mid = fl.state_ph(p_i, hot_in.h - duty)
-            return [(vapour, max(0.0, 1.0 - i - yield_of(duty))), (mid, i)]
+            back = fl.state_ph(p_i, self._split(hot_in.h - duty, sat)[0])
+            return [(vapour, max(0.0, 1.0 - i - yield_of(duty))), (back, i)]
 
         section = Section(fl, rec, hot_in, colds_of, vapour.T)
         lowest = max(0.0, hot_in.h - vapour.h)
@@ -181,8 +208,14 @@ class DualPressureLindeHampson(Liquefier):
         eps = section.effectiveness(duty)
         m_fixed, _ = self._production(liquid)
         q0 = sc.heat_leak / m_fixed if m_fixed else 0.0
-        duty0 = hot_in.h - (vapour.h - q0 / (1.0 - i))  # y = 0 here
-        eps_crit = rec.effectiveness(fl, hot_in, [(vapour, 1.0 - i), (fl.state_ph(p_i, hot_in.h - duty0), i)], duty0)
+        # y = 0 where the second valve is fed at h = hg - q0 / (1 - i), all of it returning.
+        h_feed0 = vapour.h - q0 / (1.0 - i)
+        h_mid0 = h_feed0
+        if sat is not None and h_feed0 < sat[1].h:
+            h_mid0 = (1.0 - i) * h_feed0 + i * sat[1].h
+        duty0 = hot_in.h - h_mid0
+        back0 = fl.state_ph(p_i, self._split(h_mid0, sat)[0])
+        eps_crit = rec.effectiveness(fl, hot_in, [(vapour, 1.0 - i), (back0, i)], duty0)
         if y <= 0:
             raise NoLiquefactionError(self._critical_message(eps, eps_crit, "recuperator"))
         if i >= 1.0 - y:
@@ -192,7 +225,10 @@ class DualPressureLindeHampson(Liquefier):
 
         hp_out = fl.state_ph(rec.hot_outlet_pressure(hot_in.p), hot_in.h - duty)
         mid = self.first_valve.run(fl, hp_out)
-        valve_out = self.valve.run(fl, mid)
+        h_back, h_feed, vapour_fraction = self._split(mid.h, sat)
+        back = fl.state_ph(p_i, h_back)
+        feed = fl.state_ph(p_i, h_feed)
+        valve_out = self.valve.run(fl, feed)
         T_out = float(prof.cold_T[-1])
         lp_ret = fl.state_tp(T_out, self.suction_pressure)
         ip_ret = fl.state_tp(T_out, self.mixing_pressure)
@@ -213,7 +249,14 @@ class DualPressureLindeHampson(Liquefier):
         streams += [
             ("aftercooler outlet, recuperator high-pressure inlet", hp_in, 1.0),
             ("recuperator high-pressure outlet, first valve inlet", hp_out, 1.0),
-            ("first valve outlet (intermediate pressure)", mid, 1.0),
+        ]
+        if vapour_fraction is None:
+            streams.append(("first valve outlet (intermediate pressure)", mid, 1.0))
+        else:
+            streams += [("first valve outlet, intermediate receiver inlet", mid, 1.0),
+                        ("receiver return, recuperator intermediate-pressure inlet", back, i),
+                        ("receiver outflow, second valve inlet", feed, 1.0 - i)]
+        streams += [
             ("second valve outlet, separator inlet", valve_out, 1.0 - i),
             ("liquid product", liquid, y),
             ("separator vapour, recuperator low-pressure inlet", vapour, 1.0 - i - y),
@@ -229,14 +272,27 @@ class DualPressureLindeHampson(Liquefier):
                            + self._exergy_loss([(hp_suction, 1.0)], [(hp_in, 1.0)],
                                                [(-(high.heat_rejected + after_duty), self.T0)])),
             "intermediate_mixing": self._exergy_loss([(low_out, 1.0 - i), (ip_ret, i)], [(hp_suction, 1.0)]),
-            "recuperator": self._exergy_loss([(hot_in, 1.0), (vapour, 1.0 - i - y), (mid, i)],
+            "recuperator": self._exergy_loss([(hot_in, 1.0), (vapour, 1.0 - i - y), (back, i)],
                                              [(hp_out, 1.0), (lp_ret, 1.0 - i - y), (ip_ret, i)]),
             "intermediate_valve": self._exergy_loss([(hp_out, 1.0)], [(mid, 1.0)]),
             "make_up_mixing": self._exergy_loss([(lp_ret, 1.0 - i - y), (makeup, y)], [(suction, 1.0 - i)]),
         }
-        losses.update(self._cold_end_losses(y, q_leak, mid, valve_out, 1.0 - i, liquid, vapour))
+        if vapour_fraction is not None:  # separating two phases in equilibrium: about nothing
+            losses["intermediate_receiver"] = self._exergy_loss([(mid, 1.0)], [(back, i), (feed, 1.0 - i)])
+        losses.update(self._cold_end_losses(y, q_leak, feed, valve_out, 1.0 - i, liquid, vapour))
+        warn = []
+        if vapour_fraction == 0.0:
+            warn.append(f"the intermediate receiver gets no vapour (the first valve delivers liquid at "
+                        f"{mid.T:.2f} K): the recirculated fraction {i:g} goes back as liquid and boils in the "
+                        f"recuperator; lower dual_pressure.intermediate_pressure or the fraction for a vapour return")
+        elif vapour_fraction is not None and vapour_fraction < i:
+            warn.append(f"the intermediate receiver gets {vapour_fraction:.4f} of vapour per kg compressed, less "
+                        f"than dual_pressure.recirculated_fraction {i:g}: {i - vapour_fraction:.4f} of its liquid "
+                        f"goes back with the vapour and boils in the recuperator; a fraction of at most "
+                        f"{vapour_fraction:.4f} returns vapour only")
         return self._finish(
             y=y, m=m, streams=streams, compressions=[(low, 1.0 - i), (high, 1.0)], after_duty=after_duty,
             makeup=makeup, liquid=liquid, throttle_outlet=valve_out,
             recuperators={"recuperator": self._recuperator_result(duty, prof, eps, eps_crit)},
-            reports={"recuperator": report}, losses=losses)
+            reports={"recuperator": report}, losses=losses, warn=warn,
+            receiver_vapour_fraction=vapour_fraction)

@@ -77,6 +77,14 @@ def summary_sections(result):
             rows.append((f"{sc.precooling.coolant} boiled off per kg liquid",
                          number(s["coolant_kg_per_kg_liquid"], "{:.3f}"), "kg/kg"))
         sections.append(("Precooling", rows))
+    q = result.receiver_vapour_fraction
+    if q is not None:
+        i = sc.dual_pressure.recirculated_fraction
+        rows = [("vapour fraction of the first valve's outflow", number(q, "{:.4f}"), ""),
+                ("returned (recirculated fraction)", number(i, "{:.4f}"), "")]
+        rows.append(("vapour passed on to the second valve", number(q - i, "{:.4f}"), "") if q >= i else
+                    ("liquid returned with the vapour", number(i - q, "{:.4f}"), ""))
+        sections.append(("Intermediate receiver (per kg compressed)", rows))
     for name, rec in result.recuperators.items():
         rows = [("effectiveness", number(rec.effectiveness, "{:.4f}"), "")]
         crit = rec.critical_effectiveness

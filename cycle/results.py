@@ -163,6 +163,9 @@ class CycleResult:
     sections : dict of str to SolveReport
         One solve report per recuperator.
     warnings : list of str
+    receiver_vapour_fraction : float or None
+        Dual-pressure layout below the critical pressure: vapour fraction of the first valve's
+        outflow into the intermediate receiver [-]; None where it is one phase.
     """
 
     scenario: object
@@ -185,6 +188,7 @@ class CycleResult:
     precooler_duty: float = 0.0
     coolant_per_kg_compressed: Optional[float] = None
     warnings: list = field(default_factory=list)
+    receiver_vapour_fraction: Optional[float] = None
 
     @property
     def recuperator(self):
@@ -242,6 +246,8 @@ class CycleResult:
             out["recuperator_min_approach_K"] = min(r.min_approach for r in recs)
             out["recuperator_duty_kJ_per_kg_compressed"] = sum(r.duty for r in recs) / 1e3
             out["recuperator_UA_W_per_K_per_kg_per_s"] = _finite_or_none(sum(r.ua_per_flow for r in recs))
+        if self.scenario.layout == "dual-pressure":
+            out["receiver_vapour_fraction"] = self.receiver_vapour_fraction
         out.update({
             "throttle_outlet_temperature_K": self.throttle_outlet.T,
             "throttle_outlet_quality": self.throttle_outlet.quality,
@@ -338,6 +344,8 @@ def summary_keys(scenario):
     if "recuperator" not in names:
         keys += ["recuperator_min_approach_K", "recuperator_duty_kJ_per_kg_compressed",
                  "recuperator_UA_W_per_K_per_kg_per_s"]
+    if scenario.layout == "dual-pressure":
+        keys.append("receiver_vapour_fraction")
     keys += ["throttle_outlet_temperature_K", "throttle_outlet_quality", "heat_rejected_kJ_per_kg_compressed",
              "energy_balance_residual"]
     if scenario.production is not None:

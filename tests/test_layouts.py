@@ -304,15 +304,72 @@ def test_cli_shows_the_breakdown_sorted_with_shares(capsys):
 
 
 @pytest.mark.parametrize("gas, p_mid", [("nitrogen", "20 bar"), ("nitrogen", "30 bar"), ("air", "25 bar")])
-def test_dual_pressure_with_a_boiling_intermediate_stream(gas, p_mid):
-    # Below the critical pressure the intermediate-pressure stream leaves the first valve two-phase
-    # and boils in the recuperator; the composite curve takes its boiling plateau.
+def test_dual_pressure_below_the_critical_pressure_has_a_receiver(gas, p_mid):
+    # Below the critical pressure the first valve's outflow is two-phase; the intermediate receiver
+    # returns vapour through the recuperator and sends the rest on to the second valve (Barron 1985,
+    # sec. 3.7: the intermediate liquid receiver of the Linde dual-pressure system).
     sc = scenario(gas, recuperator={"min_approach": "3 K", "zones": 30},
                   dual_pressure={"intermediate_pressure": p_mid, "recirculated_fraction": 0.6})
     result = solve_scenario(sc)
-    by = {x.name: x.state for x in result.states}
-    assert by["first valve outlet (intermediate pressure)"].quality is not None
+    fl = get_fluid(gas)
+    by = {x.name: x for x in result.states}
+    mid = by["first valve outlet, intermediate receiver inlet"].state
+    back = by["receiver return, recuperator intermediate-pressure inlet"]
+    feed = by["receiver outflow, second valve inlet"]
+    q = result.receiver_vapour_fraction
+    assert q == result.summary()["receiver_vapour_fraction"] and 0.6 < q < 1.0  # more vapour than returns
+    p_i = mid.p
+    sat_l, sat_v = fl.saturated_liquid(p_i), fl.saturated_vapour(p_i)
+    assert q == pytest.approx((mid.h - sat_l.h) / (sat_v.h - sat_l.h), rel=1e-12)
+    assert back.flow == 0.6 and back.state.h == pytest.approx(sat_v.h, rel=1e-12)  # saturated vapour goes back
+    # The receiver's balance: what goes on carries the liquid and the vapour left over.
+    assert 0.6 * back.state.h + 0.4 * feed.state.h == pytest.approx(mid.h, rel=1e-12)
     assert result.recuperator.min_approach == pytest.approx(3.0, abs=1e-5)
     assert abs(result.energy_balance_residual) < 1e-8
+    assert abs(result.exergy_losses["intermediate_receiver"]) < 1e-9 * result.total_work_per_kg_compressed
     total = result.ideal_work_per_kg_liquid + sum(result.exergy_losses_per_kg_liquid().values())
     assert total == pytest.approx(result.work_per_kg_liquid, rel=1e-7)
+    assert not result.warnings
+
+
+def test_receiver_keeps_the_textbook_dual_pressure_yield():
+    # The receiver changes the streams inside the cold box, not its energy balance: with a perfect
+    # recuperator the yield is still y = [(h1 - h3) - i (h1 - h2)] / (h1 - hf) (Barron 1985, sec. 3.7).
+    sc = scenario("nitrogen", dual_pressure={"intermediate_pressure": "20 bar", "recirculated_fraction": 0.3})
+    result = solve_scenario(sc)
+    assert result.receiver_vapour_fraction is not None
+    expected = dual_pressure_ideal_yield(get_fluid("nitrogen"), 300.0, ATM, 20e5, 200e5, 0.3)
+    assert result.liquid_yield == pytest.approx(expected, rel=1e-8)
+
+
+def test_receiver_without_vapour_says_the_return_is_liquid():
+    # At 30 bar and i = 0.9 the perfect recuperator subcools the high-pressure stream below the
+    # receiver's bubble point: no vapour forms, and the returned flow boils in the recuperator.
+    sc = scenario("nitrogen", dual_pressure={"intermediate_pressure": "30 bar", "recirculated_fraction": 0.9})
+    result = solve_scenario(sc)
+    assert result.receiver_vapour_fraction == 0.0
+    assert any(w.startswith("the intermediate receiver gets no vapour") for w in result.warnings)
+    assert min(result.exergy_losses.values()) > -1e-9 * result.total_work_per_kg_compressed
+
+
+def test_receiver_split_is_continuous_and_vapour_first():
+    from cycle.layouts import DualPressureLindeHampson
+
+    sc = scenario("nitrogen", dual_pressure={"intermediate_pressure": "20 bar", "recirculated_fraction": 0.4})
+    plant = DualPressureLindeHampson(sc)
+    sat = plant._receiver()
+    hf, hg = sat[0].h, sat[1].h
+    for q in (0.0, 0.1, 0.399999, 0.4, 0.400001, 0.7, 1.0):
+        h = hf + q * (hg - hf)
+        back, feed, x = plant._split(h, sat)
+        assert x == pytest.approx(q, abs=1e-12)
+        assert 0.4 * back + 0.6 * feed == pytest.approx(h, rel=1e-12)  # the receiver's energy balance
+        if q >= 0.4:
+            assert back == pytest.approx(hg, rel=1e-12)  # vapour only goes back
+        else:
+            assert feed == pytest.approx(hf, rel=1e-12)  # liquid only goes on; the rest of it goes back
+    # Just outside the dome the receiver is a plain tee, meeting the two-phase values at its edges.
+    assert plant._split(hf - 1.0, sat)[:2] == (hf - 1.0, hf - 1.0)
+    assert plant._split(hg + 1.0, sat)[:2] == (hg + 1.0, hg + 1.0)
+    sc = scenario("nitrogen", dual_pressure={"intermediate_pressure": "60 bar", "recirculated_fraction": 0.4})
+    assert DualPressureLindeHampson(sc)._receiver() is None  # above the critical pressure, 33.96 bar
