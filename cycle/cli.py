@@ -16,8 +16,7 @@ from cycle.safety import CAUTIONS, SHORT_CAUTION
 EXIT_INPUT = 2
 EXIT_NO_LIQUID = 3
 # Each command's --help points to the full cautions, which the top-level --help carries once.
-SAFETY_POINTER = ("safety: high pressure, cryogenic liquid, oxygen deficiency or enrichment, flammable gases; "
-                  "read the cautions in lhsim --help")
+SAFETY_POINTER = "safety: high pressure, cryogenic liquid, oxygen deficiency/enrichment, flammables: see lhsim --help"
 
 
 class _Formatter(argparse.RawDescriptionHelpFormatter):
