@@ -37,6 +37,8 @@ DUTY_RTOL = 1e-10
 # (effectiveness absolute [-], minimum approach absolute [K], UA relative to the target [-]).
 UA_RTOL = 1e-6
 SIZING_TOLERANCE = {"effectiveness": 1e-9, "min_approach": 1e-6, "ua": UA_RTOL}
+# Relative size [-] of the work below which a negative exergy loss is round-off (and shown as 0).
+LOSS_ROUND_OFF = 1e-8
 # Streams closer than this [K] touch: below the resolution of the property data, the exchanger
 # is a perfect one and its UA is reported as unbounded (null).
 TOUCH_APPROACH = 1e-6
@@ -428,6 +430,14 @@ def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
     return a, root, ua_abs(a)
 
 
+def _without_round_off(losses, work):
+    """Exergy losses with the round-off of a loss that is zero in principle (a separator of
+    phases in equilibrium, a reversible compressor) set to 0 [J/kg]; a loss more negative than
+    that is left as it is, for the tests of the second law to find."""
+    floor = -LOSS_ROUND_OFF * abs(work)
+    return {name: 0.0 if floor <= value < 0.0 else value for name, value in losses.items()}
+
+
 def _combined_report(reports):
     reports = list(reports)
     if len(reports) == 1:
@@ -684,7 +694,8 @@ class Liquefier:
             aftercooler_duty=after_duty, liquid_density=liquid.density, recuperators=recuperators,
             states=states, throttle_outlet=throttle_outlet, compressor_flow=m,
             energy_balance_residual=balance, solve=_combined_report(reports.values()), sections=reports,
-            exergy_losses=losses, precooling_work_per_kg_compressed=precooling_work,
+            exergy_losses=_without_round_off(losses, comp_work + precooling_work),
+            precooling_work_per_kg_compressed=precooling_work,
             precooler_duty=precooler_duty, coolant_per_kg_compressed=coolant, warnings=warn,
             receiver_vapour_fraction=receiver_vapour_fraction)
 
