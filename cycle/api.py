@@ -97,6 +97,8 @@ def with_si_columns(frame):
     cols = list(frame.columns)
     swept = cols[cols.index("point") + 1: cols.index("status")] if "point" in cols and "status" in cols else []
     frame = frame.copy()
+    if "message" in frame:  # an empty message is text, not a missing number
+        frame["message"] = frame["message"].fillna("").astype(str)
     for column in swept:
         parsed = parse_column(str(column))
         if parsed is not None and parsed[1] is not None and parsed[0] not in frame.columns:

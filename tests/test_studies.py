@@ -327,6 +327,7 @@ def test_api_for_notebooks(tmp_path):
     both = api.sweep(BASE, {"high_pressure": ["100 bar", "150 bar"], "gas": ["nitrogen"]})
     assert list(both.columns[:3]) == ["point", "high_pressure_bar", "gas"] and both.columns[-1] == "high_pressure"
     assert list(both["high_pressure_bar"]) == [100.0, 150.0] and list(both["high_pressure"]) == [100e5, 150e5]
+    assert list(both["message"]) == ["", ""]  # ok points: empty text, not NaN
     result = api.run("scenarios/argon-unit.yaml")
     assert result.to_frame().loc[1, "stream"] == "compressor suction"
     table = api.compare("scenarios/nitrogen-bench.yaml", ["nitrogen", "argon"])
