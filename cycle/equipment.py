@@ -6,8 +6,10 @@ unless a name says otherwise.
 """
 
 from dataclasses import dataclass
+import math
 
 from cycle import processes
+from cycle.errors import ScenarioError
 
 
 # How the isothermal model's outlet state is named in state tables and figures.
@@ -25,12 +27,19 @@ class CompressionResult:
     work : float
         Shaft work [J/kg compressed].
     heat_rejected : float
-        Heat rejected inside the compressor train (stage cooling and intercoolers) [J/kg].
+        Heat taken from the gas inside the compressor train (stage cooling and intercoolers) [J/kg].
+    chiller_work : float
+        Least work of the chillers that intercooling below ambient needs, an ideal (Carnot)
+        refrigerator's [J/kg compressed]; 0 with intercoolers at or above ambient.
+    warnings : tuple of str
+        Stages discharging above ``compressor.max_discharge_temperature``, in words.
     """
 
     states: list
     work: float
     heat_rejected: float
+    chiller_work: float = 0.0
+    warnings: tuple = ()
 
     @property
     def outlet(self):
@@ -64,6 +73,12 @@ class Compressor:
             Prefix for the state labels (``"low-pressure section "``).
         cool_after : bool
             Intercool the last stage's discharge too (a section that feeds another).
+
+        Raises
+        ------
+        ScenarioError
+            If a stage leaves the range of the equation of state (a stage too hot for it);
+            the message names the stage and suggests more stages.
         """
         spec = self.spec
         last = f"{section}discharge" if section else "compressor discharge"
@@ -72,21 +87,96 @@ class Compressor:
                 fluid, inlet, p_out, self.cooling_temperature, spec.isothermal_efficiency,
                 self.ambient_temperature)
             # Not a discharge at a temperature a machine would show: the model rejects the heat
-            # inside the compressor and delivers the gas at the aftercooler temperature.
+            # inside the compressor and delivers the gas at the aftercooler temperature.  Its
+            # reversible work is the exergy rise to that state, so below ambient it already
+            # counts the refrigeration; there is no stage discharge to check.
             label = f"{section}outlet" if section else "compressor outlet"
             return CompressionResult([(f"{label} {ISOTHERMAL_LABEL}", outlet)], work, heat)
-        states, work, heat = [], 0.0, 0.0
+        from properties import PropertyRangeError
+
+        states, work, heat, chill = [], 0.0, 0.0, 0.0
         state = inlet
-        pressures = processes.stage_pressures(inlet.p, p_out, spec.stages)
+        n = spec.stages
+        pressures = processes.stage_pressures(inlet.p, p_out, n)
+        hot = []
         for k, p_stage in enumerate(pressures, start=1):
-            state, w = processes.compress_isentropic(fluid, state, p_stage, spec.isentropic_efficiency)
+            try:
+                outlet, w = processes.compress_isentropic(fluid, state, p_stage, spec.isentropic_efficiency)
+            except PropertyRangeError as err:
+                raise ScenarioError(
+                    f"{_stage_name(k, n, section)} leaves the range of the {fluid.name} equation of state at a "
+                    f"pressure ratio of {p_stage / state.p:.3g} ({err}); {self._more_stages(fluid, inlet, p_out)}"
+                ) from None
             work += w
-            states.append((last if k == spec.stages else f"{section}stage {k} discharge", state))
-            if k < spec.stages or cool_after:
-                state, duty = processes.cool(fluid, state, self.cooling_temperature)
+            if outlet.T > spec.max_discharge_temperature:
+                hot.append((k, outlet.T))
+            states.append((last if k == n else f"{section}stage {k} discharge", outlet))
+            state = outlet
+            if k < n or cool_after:
+                state, duty = processes.cool(fluid, outlet, self.cooling_temperature)
                 heat += duty
+                chill += processes.chiller_work(fluid, outlet, state, self.ambient_temperature)
                 states.append((f"{section}intercooler {k} outlet", state))
-        return CompressionResult(states, work, heat)
+        warn = ()
+        if hot:
+            warn = (self._hot_warning(fluid, inlet, p_out, section, hot),)
+        return CompressionResult(states, work, heat, chill, warn)
+
+    def _hot_warning(self, fluid, inlet, p_out, section, hot):
+        """One sentence on the stages in ``hot`` [(stage, discharge temperature [K])]."""
+        n, limit = self.spec.stages, self.spec.max_discharge_temperature
+        stages = [k for k, _ in hot]
+        if len(stages) == 1:
+            who = f"stage {stages[0]} of {n}"
+            verb = "discharges"
+        else:
+            who = f"stages {_and(str(k) for k in stages)} of {n}"
+            verb = "discharge"
+        if section:
+            who += f" ({section.strip()})"
+        temps = (f"{_and(f'{T:.1f}' for _, T in hot)} K "
+                 f"({_and(f'{T - 273.15:.0f}' for _, T in hot)} degC)")
+        ratio = f"{(p_out / inlet.p) ** (1.0 / n):.3g} " + ("in one stage" if n == 1 else "per stage")
+        return (f"compressor {who} {verb} at {temps}, above compressor.max_discharge_temperature {limit:.2f} K "
+                f"({limit - 273.15:.0f} degC), at a pressure ratio of {ratio} (common practice for a "
+                f"reciprocating stage: about 3 to 5); {self._more_stages(fluid, inlet, p_out)}")
+
+    def _more_stages(self, fluid, inlet, p_out):
+        """Advice: the fewest stages (up to the 12 allowed) that keep every discharge of this
+        compression at or below ``max_discharge_temperature``, intercooled as now."""
+        limit = self.spec.max_discharge_temperature
+        for n in range(self.spec.stages + 1, 13):
+            if self._hottest_discharge(fluid, inlet, p_out, n) <= limit:
+                return (f"compress in more stages: compressor.stages {n} (intercooled to "
+                        f"{self.cooling_temperature:.5g} K) keeps every discharge below {limit:.2f} K")
+        return (f"even compressor.stages 12 would not keep every discharge below {limit:.2f} K here: "
+                f"intercool colder (aftercooler.outlet_temperature) or use a better compressor "
+                f"(compressor.isentropic_efficiency)")
+
+    def _hottest_discharge(self, fluid, inlet, p_out, n):
+        """Hottest stage discharge [K] of ``n`` intercooled stages (inf outside the fluid's range)."""
+        from properties import PropertyRangeError
+
+        state, hottest = inlet, 0.0
+        try:
+            for p_stage in processes.stage_pressures(inlet.p, p_out, n):
+                outlet, _ = processes.compress_isentropic(fluid, state, p_stage, self.spec.isentropic_efficiency)
+                hottest = max(hottest, outlet.T)
+                state, _ = processes.cool(fluid, outlet, self.cooling_temperature)
+        except PropertyRangeError:
+            return math.inf
+        return hottest
+
+
+def _stage_name(k, n, section):
+    """``compressor stage 2 of 3``, with the section in brackets where there are two."""
+    return f"compressor stage {k} of {n}" + (f" ({section.strip()})" if section else "")
+
+
+def _and(items):
+    """``1, 2 and 3``."""
+    items = list(items)
+    return items[0] if len(items) == 1 else ", ".join(items[:-1]) + " and " + items[-1]
 
 
 class Aftercooler:
@@ -99,6 +189,12 @@ class Aftercooler:
     def run(self, fluid, inlet):
         """Return (outlet state, duty [J/kg])."""
         return processes.cool(fluid, inlet, self.outlet_temperature, self.pressure_drop)
+
+    def chiller_work(self, fluid, inlet, ambient_temperature):
+        """Least work [J/kg] of the chiller an outlet below ``ambient_temperature`` [K] needs:
+        an ideal (Carnot) refrigerator's (:func:`cycle.processes.chiller_work`); 0 otherwise."""
+        outlet, _ = self.run(fluid, inlet)
+        return processes.chiller_work(fluid, inlet, outlet, ambient_temperature)
 
 
 class ThrottleValve:

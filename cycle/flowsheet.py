@@ -662,9 +662,32 @@ class Liquefier:
                 recuperators, reports, losses, precooling_work=0.0, precooler_duty=0.0, coolant=None,
                 warn=(), receiver_vapour_fraction=None):
         sc = self.scenario
-        warn = list(warn)
-        comp_work = sum(flow * c.work for c, flow in compressions)
-        comp_heat = sum(flow * c.heat_rejected for c, flow in compressions)
+        warn = list(warn) + [text for c, _ in compressions for text in c.warnings]
+        # Cooling below ambient needs a chiller, charged at an ideal (Carnot) one's work (a lower
+        # bound; 0 where every cooler is at or above ambient): the intercoolers' from each
+        # compression, the aftercooler's after the last compression, which feeds it.  The
+        # chiller's work leaves with the heat it lifts to the surroundings at T0, so it adds itself
+        # to the heat rejected and to the compressor train's exergy loss (which every layout
+        # computes with the train's heat rejected at T0).
+        feed, feed_flow = compressions[-1]
+        chill = (sum(flow * c.chiller_work for c, flow in compressions)
+                 + feed_flow * self.aftercooler.chiller_work(self.fluid, feed.outlet, self.T0))
+        comp_work = sum(flow * c.work for c, flow in compressions) + chill
+        comp_heat = sum(flow * c.heat_rejected for c, flow in compressions) + chill
+        if chill:
+            losses = dict(losses, compressor=losses["compressor"] + chill)
+        T_after = sc.aftercooler.outlet_temperature
+        if T_after < self.T0:
+            where = (f"aftercooler.outlet_temperature {T_after:g} K is below ambient_temperature {self.T0:g} K: "
+                     f"cooling the gas to it needs a chiller (refrigeration below ambient)")
+            if sc.compressor.isothermal_efficiency is not None:
+                warn.append(f"{where}; the isothermal compressor model counts it in its own work (the reversible "
+                            f"work is the exergy rise to the cold outlet), at compressor.isothermal_efficiency")
+            else:
+                power = f" ({m * chill / 1e3:.4g} kW)" if m else ""
+                warn.append(f"{where}; it is charged as an ideal (Carnot) chiller, {chill / 1e3:.4g} kJ/kg "
+                            f"compressed{power} added to the compressor work and to its exergy loss: a lower "
+                            f"bound, a real chiller needs more")
         q_leak = sc.heat_leak / m if m else 0.0
         # Whole plant: work, make-up gas and heat leak in; liquid and rejected heat out.
         energy_in = comp_work + y * makeup.h + q_leak

@@ -99,6 +99,48 @@ def cool(fluid, inlet, T_out, pressure_drop=0.0):
     return outlet, inlet.h - outlet.h
 
 
+def chiller_work(fluid, inlet, outlet, T0):
+    """Least work a cooler needs to take a stream from ``inlet`` to ``outlet`` when the only
+    heat sink is the surroundings at ``T0`` [K]: the work of an ideal (Carnot) chiller [J/kg].
+
+    Heat taken from the gas above ``T0`` goes to the surroundings for nothing.  Below ``T0`` it
+    has to be pumped up to ``T0``: a Carnot refrigerator lifting ``dQ`` from the gas at ``T``
+    needs ``dQ (T0 / T - 1)``, which summed from where the gas reaches ``T0`` to the outlet is
+    the rise of the stream's exergy, ``(h_out - h_a) - T0 (s_out - s_a)``, with ``a`` the state
+    at ``T0`` and the outlet pressure (the pressure drop is taken in the part above ambient), or
+    the inlet if that is already below ``T0``.  A real chiller needs more: this is a lower bound.
+
+    Parameters
+    ----------
+    fluid : properties.Fluid
+    inlet, outlet : properties.State
+        The stream entering and leaving the cooler.
+    T0 : float
+        Temperature of the surroundings [K].
+
+    Returns
+    -------
+    float
+        Work [J/kg of gas cooled], 0 where the surroundings take all the heat.
+
+    Notes
+    -----
+    The same relation charges the rare cooler that has to warm the gas above ``T0`` (a cold
+    compressor stage discharging below an intercooler temperature set above ambient): the
+    surroundings warm the gas to ``T0`` for nothing, a Carnot heat pump the rest.  Either way
+    the cooler destroys no negative exergy.
+
+    References
+    ----------
+    R. F. Barron, *Cryogenic Systems*, 2nd ed., Oxford University Press, 1985, sec. 3.1
+    (the least work of refrigeration and of liquefaction as an exergy difference,
+    W = T0 (s1 - s2) - (h1 - h2)).
+    """
+    T_a, T_b = sorted((inlet.T, outlet.T))
+    start = fluid.state_tp(T0, outlet.p) if T_a < T0 < T_b else inlet
+    return max(0.0, (outlet.h - start.h) - T0 * (outlet.s - start.s))
+
+
 def throttle(fluid, inlet, p_out):
     """Adiabatic expansion through a valve: enthalpy is kept (Joule-Thomson expansion)."""
     return fluid.state_ph(p_out, inlet.h)

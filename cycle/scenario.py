@@ -15,15 +15,23 @@ from cycle.units import UnitError, parse_quantity
 
 DEFAULT_AMBIENT_TEMPERATURE = 300.0  # K; the reference temperature of the textbook tables
 DEFAULT_ZONES = 50
+# Highest stage discharge temperature before lhsim warns: 150 degC, common practice for
+# lubricated reciprocating compressors (the oil and the valves set the limit).
+DEFAULT_MAX_DISCHARGE_TEMPERATURE = 423.15  # K
 
 
 @dataclass(frozen=True)
 class CompressorSpec:
-    """Compressor parameters: isothermal efficiency, or stages with isentropic efficiency."""
+    """Compressor parameters: isothermal efficiency, or stages with isentropic efficiency.
+
+    ``max_discharge_temperature`` [K] is the stage discharge temperature above which a run
+    warns (staged model only: the isothermal model has no stage discharge).
+    """
 
     isothermal_efficiency: Optional[float] = None
     stages: int = 1
     isentropic_efficiency: Optional[float] = None
+    max_discharge_temperature: float = DEFAULT_MAX_DISCHARGE_TEMPERATURE
 
     @property
     def model(self):
@@ -161,6 +169,7 @@ SCHEMA = {
         "isothermal_efficiency": "number",
         "stages": "integer",
         "isentropic_efficiency": "number",
+        "max_discharge_temperature": "temperature",
     },
     "aftercooler": {
         "outlet_temperature": "temperature",
@@ -374,6 +383,11 @@ def parse_scenario(data):
 
     compressor = _parse_compressor(data.get("compressor"))
     aftercooler = _parse_aftercooler(data.get("aftercooler") or {}, T0, p_high, p_low)
+    given_limit = (data.get("compressor") or {}).get("max_discharge_temperature")
+    if given_limit is not None and compressor.max_discharge_temperature <= aftercooler.outlet_temperature:
+        raise ScenarioError(f"compressor.max_discharge_temperature must be above aftercooler.outlet_temperature "
+                            f"({aftercooler.outlet_temperature:g} K), the temperature the gas enters each stage at, "
+                            f"got {given_limit!r}")
     p_hot_in = p_high - aftercooler.pressure_drop
     precooling = _parse_precooling(data.get("precooling"), aftercooler.outlet_temperature)
     dual = _parse_dual_pressure(data.get("dual_pressure"), p_low, p_hot_in)
@@ -502,10 +516,16 @@ def _parse_compressor(section):
         other = "isentropic_efficiency" if "isentropic_efficiency" in given else "stages"
         raise ScenarioError(f"give one of compressor.isothermal_efficiency or compressor.stages with "
                             f"compressor.isentropic_efficiency, not compressor.isothermal_efficiency and compressor.{other}")
+    limit = DEFAULT_MAX_DISCHARGE_TEMPERATURE
+    if section.get("max_discharge_temperature") is not None:
+        limit = _quantity(section, "max_discharge_temperature", "temperature", "compressor.max_discharge_temperature")
+        if not 0 < limit <= 1000:
+            raise ScenarioError(f"compressor.max_discharge_temperature must be above 0 K and at most 1000 K, got "
+                                f"{section['max_discharge_temperature']!r}")
     if section.get("isothermal_efficiency") is not None:
         eta = _number(section, "isothermal_efficiency", "compressor.isothermal_efficiency")
         _between(eta, "compressor.isothermal_efficiency", 0, 1, given=section["isothermal_efficiency"])
-        return CompressorSpec(isothermal_efficiency=eta)
+        return CompressorSpec(isothermal_efficiency=eta, max_discharge_temperature=limit)
     if section.get("isentropic_efficiency") is None:
         raise ScenarioError("missing compressor.isentropic_efficiency (with compressor.stages) or "
                             "compressor.isothermal_efficiency: expected a number between 0 and 1")
@@ -514,7 +534,7 @@ def _parse_compressor(section):
     stages = 1
     if section.get("stages") is not None:
         stages = _integer(section, "stages", "compressor.stages", 1, 12)
-    return CompressorSpec(stages=stages, isentropic_efficiency=eta)
+    return CompressorSpec(stages=stages, isentropic_efficiency=eta, max_discharge_temperature=limit)
 
 
 def _parse_aftercooler(section, T0, p_high, p_low):
