@@ -11,6 +11,7 @@ law: energy balance, exergy losses that add up and are never negative, a figure 
 
 import math
 import re
+import warnings
 
 import numpy as np
 import pytest
@@ -264,9 +265,9 @@ def test_an_aftercooler_below_ambient_is_charged_for_its_chiller():
     assert "lower bound" in text
 
 
-def test_the_chiller_makes_the_plant_cost_more_not_less():
-    # A Carnot chiller is the cheapest there is: the figure of merit with it charged stays below
-    # that of the same plant's lossless limit, and no reading of the numbers shows free cold.
+def test_a_chilled_aftercooler_raises_the_yield_and_keeps_the_laws():
+    # Chilling the high-pressure gas precools the cycle (more liquid per kg compressed); the
+    # chiller's work is charged, so the laws still hold.  At ambient there is no chiller to warn of.
     warm = solve_scenario(chilled("300 K"))
     cold = solve_scenario(chilled("200 K"))
     assert not [w for w in warm.warnings if w.startswith("aftercooler")]
@@ -278,7 +279,6 @@ def test_the_chiller_makes_the_plant_cost_more_not_less():
 def test_the_isothermal_model_below_ambient_is_charged_through_its_own_work():
     # Its reversible work is the exergy rise from suction to the cold outlet, so the
     # refrigeration is inside W = W_rev / eta_T already; no separate chiller is added.
-    fl = get_fluid("nitrogen")
     result = solve_scenario(chilled("200 K", {"isothermal_efficiency": 0.7}))
     suction, outlet = result.states[0].state, result.states[1].state
     reversible = (outlet.h - suction.h) - 300.0 * (outlet.s - suction.s)
@@ -288,7 +288,6 @@ def test_the_isothermal_model_below_ambient_is_charged_through_its_own_work():
     (text,) = [w for w in result.warnings if w.startswith("aftercooler.outlet_temperature")]
     assert "isothermal compressor model counts it in its own work" in text
     assert_laws(result)
-    assert fl.name == "Nitrogen"
 
 
 def test_at_ambient_nothing_is_charged():
@@ -320,8 +319,6 @@ def test_no_exergy_loss_goes_negative_with_any_aftercooler_temperature(layout, g
     elif layout == "dual-pressure":
         data["dual_pressure"] = {"intermediate_pressure": 0.3 * p_high, "recirculated_fraction": fraction}
     try:
-        import warnings
-
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", RecycleNotConvergedWarning)
             result = solve_scenario(parse_scenario(data))
