@@ -36,7 +36,9 @@ DUTY_RTOL = 1e-10
 # What "converged" means: the sizing quantity the user gave is reached to within this
 # (effectiveness absolute [-], minimum approach absolute [K], UA relative to the target [-]).
 UA_RTOL = 1e-6
-SIZING_TOLERANCE = {"effectiveness": 1e-9, "min_approach": 1e-6, "ua": UA_RTOL}
+# An effectiveness of several cold streams carries the round-off of the flashes behind them
+# (about 1e-9), so its tolerance is 1e-7: far below the three or four digits a design gives.
+SIZING_TOLERANCE = {"effectiveness": 1e-7, "min_approach": 1e-6, "ua": UA_RTOL}
 # Relative size [-] of the work below which a negative exergy loss is round-off (and shown as 0).
 LOSS_ROUND_OFF = 1e-8
 # Streams closer than this [K] touch: below the resolution of the property data, the exchanger
@@ -291,8 +293,9 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
         message = _limit_message(key, mode, target, achieved, res, profile, unit)
     else:
         status = "missed"
-        message = (f"{key}.{mode} reached {achieved:.6g} {unit} against the {target:g} {unit} asked for (off by "
-                   f"{res:+.3g} {unit}, more than the {allowed:.1g} {unit} allowed) after "
+        u = "" if unit == "-" else f" {unit}"
+        message = (f"{key}.{mode} reached {achieved:.10g}{u} against the {target:g}{u} asked for (off by "
+                   f"{res:+.3g}{u}, more than the {allowed:.1g}{u} allowed) after "
                    f"{root.iterations if root is not None else 0} iterations"
                    f"{'; the root-finder says: ' + root.flag if root is not None else ''}")
     report = SolveReport(
