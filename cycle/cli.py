@@ -145,6 +145,12 @@ def main(argv=None):
     args = _parser().parse_args(argv)
     commands = {"run": _cmd_run, "gas": _cmd_gas, "sweep": _cmd_sweep, "compare": _cmd_compare,
                 "optimize": _cmd_optimize, "report": _cmd_report, "plot": _cmd_plot}
+    import warnings
+
+    from cycle.errors import RecycleNotConvergedWarning
+
+    # Every command says a missed target in its own output (Warnings, JSON, the message column).
+    warnings.simplefilter("ignore", RecycleNotConvergedWarning)
     try:
         return commands[args.command](args)
     except BrokenPipeError:
@@ -213,6 +219,9 @@ def _cmd_run(args):
         return _fail(str(err), EXIT_NO_LIQUID)
     if args.json:
         print(json.dumps(_json_safe(result.to_dict()), indent=2))
+        if not result.solve.converged:
+            print("lhsim: note: the solve did not meet its target; see solve and warnings in the JSON",
+                  file=sys.stderr)
     else:
         from cycle.report import format_result
 

@@ -321,19 +321,29 @@ def fingerprint(data):
 # -- running points -----------------------------------------------------------------------
 
 def run_point(mapping):
-    """Solve one scenario mapping; return (status, message, summary dict)."""
+    """Solve one scenario mapping; return (status, message, summary dict).
+
+    An ``ok`` point's message holds the solve's warnings (a UA target the streams cannot use, a
+    solve that missed its target, ...), empty where there are none.
+    """
     from properties import PropertyRangeError
     from cycle.flowsheet import solve_scenario
 
+    import warnings
+
+    from cycle.errors import RecycleNotConvergedWarning
+
     try:
-        result = solve_scenario(parse_scenario(mapping))
+        with warnings.catch_warnings():  # said in the row's message instead
+            warnings.simplefilter("ignore", RecycleNotConvergedWarning)
+            result = solve_scenario(parse_scenario(mapping))
     except NoLiquefactionError as err:
         return "no-liquid", str(err), {}
     except (ScenarioError, PropertyRangeError) as err:
         return "invalid", str(err), {}
     except Exception as err:  # a bug or a solver failure: recorded, never stops the sweep
         return "failed", f"{type(err).__name__}: {err}", {}
-    return "ok", "", result.summary()
+    return "ok", "; ".join(result.warnings), result.summary()
 
 
 def run_batch(batch):

@@ -204,3 +204,30 @@ class _warnings_ignored:
 
     def __exit__(self, *exc):
         return self._ctx.__exit__(*exc)
+
+
+def test_a_sweep_point_that_missed_its_target_says_so_in_its_message():
+    from cycle.sweep import run_point
+
+    base = {"gas": "krypton", "low_pressure": "1.853 bar", "high_pressure": "76.54 bar",
+            "compressor": {"isothermal_efficiency": 0.8336}, "recuperator": {"ua": "689.1 W/K", "zones": 80},
+            "production": {"liquid_rate": "17.73 kg/h"}}
+    status, message, summary = run_point(base)
+    assert status == "ok" and "more than these streams can use" in message and "missed by" in message
+    assert summary["recuperator_UA_W_per_K"] is None
+    status, message, _ = run_point(dict(base, recuperator={"ua": "300 W/K", "zones": 80}))
+    assert (status, message) == ("ok", "")
+
+
+def test_cli_json_notes_a_missed_target_on_stderr_only(tmp_path, capsys):
+    import json
+
+    path = tmp_path / "kr.yaml"
+    path.write_text("gas: krypton\nlow_pressure: 1.853 bar\nhigh_pressure: 76.54 bar\n"
+                    "compressor: {isothermal_efficiency: 0.8336}\nrecuperator: {ua: 689.1 W/K, zones: 80}\n"
+                    "production: {liquid_rate: 17.73 kg/h}\n")
+    assert cli.main(["run", str(path), "--json"]) == 0
+    out, err = capsys.readouterr()
+    data = json.loads(out)
+    assert data["solve"]["converged"] is False and data["solve"]["status"] == "limit"
+    assert err.strip() == "lhsim: note: the solve did not meet its target; see solve and warnings in the JSON"
