@@ -13,5 +13,9 @@ class UnreachableSizingError(NoLiquefactionError):
     """A recuperator sizing that no exchanger between these streams can meet."""
 
 
+class TemperatureCrossError(NoLiquefactionError):
+    """A recuperator effectiveness that would make the stream temperatures cross inside it."""
+
+
 class RecycleNotConvergedWarning(RuntimeWarning):
     """The recycle solve stopped before meeting its tolerance."""

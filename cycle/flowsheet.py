@@ -28,7 +28,8 @@ from scipy.optimize import brentq, minimize_scalar
 
 from cycle.equipment import Aftercooler, Compressor, MakeupMixer, Recuperator, Separator, ThrottleValve
 from cycle.processes import ideal_work_of_liquefaction  # noqa: F401 (a textbook relation, re-exported)
-from cycle.errors import NoLiquefactionError, RecycleNotConvergedWarning, ScenarioError, UnreachableSizingError
+from cycle.errors import (NoLiquefactionError, RecycleNotConvergedWarning, ScenarioError, TemperatureCrossError,
+                          UnreachableSizingError)
 from cycle.results import CycleResult, RecuperatorResult, SolveReport, StreamState
 
 # Relative tolerance of the tear variable; property flashes are good to ~1e-10 in h.
@@ -256,6 +257,14 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
             duty, root = brentq(residual, 0.0, Q_hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
                                 full_output=True, disp=False)
         achieved = section.effectiveness(duty)
+        crossed = section.profile(duty)
+        if crossed.min_approach < -SIZING_TOLERANCE["min_approach"]:
+            k = crossed.min_approach_index
+            raise TemperatureCrossError(
+                f"{key}.effectiveness {target:g} is not reachable by a counterflow exchanger here: the stream "
+                f"temperatures would cross inside it (the returning side {-crossed.min_approach:.3g} K above the "
+                f"high-pressure side at {crossed.hot_T[k]:.1f} K), and heat cannot flow from cold to hot; lower "
+                f"the effectiveness, or size the recuperator by min_approach")
     elif mode == "min_approach":
         target, unit = spec.min_approach, "K"
 
@@ -272,6 +281,11 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
                     f"({section.T_floor:.2f} K)")
             guess = section.duty_for_outlet(target, Q_hi)
             lo, hi = _bracket(residual, guess, 0.0, Q_hi, decreasing=True)
+            if lo != hi and (residual(lo) > 0) == (residual(hi) > 0):
+                ends = sorted((residual(0.0) + target, residual(Q_hi) + target))
+                raise UnreachableSizingError(
+                    f"{key}.min_approach {target:g} K cannot be reached: from no duty to the largest the second "
+                    f"law allows, the pinch stays between {ends[0]:.3g} and {ends[1]:.3g} K")
             if lo == hi:  # the first guess was the root (the pinch at the warm end)
                 duty = lo
             else:
@@ -696,11 +710,6 @@ class Liquefier:
         energy_in = comp_work + y * makeup.h + q_leak
         energy_out = y * liquid.h + comp_heat + after_duty + precooler_duty
         balance = (energy_in - energy_out) / comp_work
-        for name, rec in recuperators.items():
-            if rec.min_approach < -1e-6:
-                warn.append(f"temperatures cross inside the {name.replace('_', ' ')} (minimum approach "
-                            f"{rec.min_approach:.3g} K at {rec.min_approach_hot_temperature:.1f} K): effectiveness "
-                            f"{rec.effectiveness:.4g} is not reachable by a real counterflow exchanger here")
         if throttle_outlet.quality is None:
             warn.append("the valve outlet is not two-phase: liquid comes only from the margin of heat leak")
         for name, report in reports.items():

@@ -231,7 +231,15 @@ class DualPressureLindeHampson(Liquefier):
         valve_out = self.valve.run(fl, feed)
         T_out = float(prof.cold_T[-1])
         lp_ret = fl.state_tp(T_out, self.suction_pressure)
-        ip_ret = fl.state_tp(T_out, self.mixing_pressure)
+        # The recirculated stream's outlet from the duty it took (exact even where it leaves at its
+        # boiling temperature, where a (T, p) state would be ambiguous).
+        ip_ret = fl.state_ph(self.mixing_pressure, back.h + (duty - (1.0 - i - y) * (lp_ret.h - vapour.h)) / i)
+        if ip_ret.quality is not None:
+            raise ScenarioError(
+                f"dual_pressure.recirculated_fraction {i:g} is more than the recuperator can evaporate: the "
+                f"recirculated stream leaves it still boiling (vapour fraction {ip_ret.quality:.3f} at "
+                f"{ip_ret.T:.2f} K) and would carry liquid into the high-pressure section; lower the fraction "
+                f"or dual_pressure.intermediate_pressure")
         makeup = self.mixer.makeup_state(fl)
         suction = self.mixer.run(fl, lp_ret, 1.0 - i - y, y)
         low = self.compressor.run(fl, suction, self.mixing_pressure, section="low-pressure section ",

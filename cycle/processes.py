@@ -358,7 +358,11 @@ def composite_profile(fluid, hot_in, hot_p_out, hot_flow, colds, duty, zones):
     _, q, p_hot, hot_T = _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones)
     cold_T = np.empty(zones + 1)
     cold_T[0], cold_T[-1] = T_low, T_out
+    at_outlet = absorbed(T_out, T_out)
     for k in range(1, zones):
+        if at_outlet < q[k]:  # the outlet lies on a boiling plateau and this boundary is on it
+            cold_T[k] = T_out
+            continue
         cold_T[k] = brentq(lambda T: absorbed(T, T_out) - q[k], T_low, T_out, xtol=1e-9, rtol=1e-13)
     first, p_first, _ = colds[0]
     span = max(T_out - first.T, 1e-12)

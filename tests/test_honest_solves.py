@@ -231,3 +231,47 @@ def test_cli_json_notes_a_missed_target_on_stderr_only(tmp_path, capsys):
     data = json.loads(out)
     assert data["solve"]["converged"] is False and data["solve"]["status"] == "limit"
     assert err.strip() == "lhsim: note: the solve did not meet its target; see solve and warnings in the JSON"
+
+
+def test_an_effectiveness_that_makes_the_temperatures_cross_is_refused():
+    # Argon, dual pressure, the recuperator's hot end at 160 K: the returned liquid boils at
+    # 140.9 K, and an effectiveness of 0.97 would put the returning side 17 K above the
+    # high-pressure side inside the exchanger: a negative exergy loss, heat flowing cold to hot.
+    from cycle.errors import TemperatureCrossError
+
+    data = {"gas": "argon", "ambient_temperature": 160.0, "low_pressure": 1.3e5, "high_pressure": 109.5e5,
+            "compressor": {"isothermal_efficiency": 1.0}, "recuperator": {"effectiveness": 0.97, "zones": 10},
+            "dual_pressure": {"intermediate_pressure": 0.3 * 109.5e5, "recirculated_fraction": 0.5}}
+    with pytest.raises(TemperatureCrossError, match=r"recuperator.effectiveness 0.97 is not reachable .* cross"):
+        solve_scenario(parse_scenario(data))
+    # Sized by its pinch instead, the same plant cannot evaporate the returned liquid: refused too,
+    # rather than sending liquid to the high-pressure section.
+    data["recuperator"] = {"min_approach": "2 K", "zones": 10}
+    with pytest.raises(ScenarioError, match=r"more than the recuperator can evaporate: .* still boiling"):
+        solve_scenario(parse_scenario(data))
+    data["dual_pressure"]["recirculated_fraction"] = 0.1  # a small return evaporates
+    result = solve_scenario(parse_scenario(data))
+    assert result.recuperator.min_approach == pytest.approx(2.0, abs=1e-6)
+    assert min(result.exergy_losses.values()) >= 0.0 and result.figure_of_merit < 1.0
+    returned = next(s.state for s in result.states if s.name == "recuperator intermediate-pressure outlet")
+    assert returned.quality is None and returned.T == pytest.approx(result.states[-3].state.T, abs=1e-6)
+
+
+@pytest.mark.parametrize("data, message", [
+    # Found by a random scan of dual-pressure plants with a cold recuperator hot end: the march
+    # used to stop with a bare SciPy error where the composite leaves on a boiling plateau ...
+    ({"gas": "argon", "ambient_temperature": 138.417, "high_pressure": 72.322e5,
+      "compressor": {"isothermal_efficiency": 0.57}, "recuperator": {"min_approach": "2.445 K", "zones": 10},
+      "dual_pressure": {"intermediate_pressure": 14.5396e5, "recirculated_fraction": 0.2257}},
+     "more than the recuperator can evaporate"),
+    # ... or where no duty brings the pinch down to the target.
+    ({"gas": "methane", "ambient_temperature": 159.19, "high_pressure": 215.347e5,
+      "compressor": {"isothermal_efficiency": 0.94}, "recuperator": {"min_approach": "5.2587 K", "zones": 10},
+      "dual_pressure": {"intermediate_pressure": 145.718e5, "recirculated_fraction": 0.8107}},
+     "min_approach 5.2587 K cannot be reached"),
+])
+def test_dual_pressure_edges_give_one_line_reasons(data, message):
+    data = dict(data, low_pressure=1.3e5)
+    with pytest.raises((ScenarioError, NoLiquefactionError), match=message) as info:
+        solve_scenario(parse_scenario(data))
+    assert "\n" not in str(info.value)
