@@ -136,10 +136,12 @@ class Compressor:
             who += f" ({section.strip()})"
         temps = (f"{_and(f'{T:.1f}' for _, T in hot)} K "
                  f"({_and(f'{T - 273.15:.0f}' for _, T in hot)} degC)")
-        ratio = f"{(p_out / inlet.p) ** (1.0 / n):.3g} " + ("in one stage" if n == 1 else "per stage")
+        r = (p_out / inlet.p) ** (1.0 / n)
+        ratio = f"{r:.3g} " + ("in one stage" if n == 1 else "per stage")
+        practice = " (common practice for a reciprocating stage: about 3 to 5)" if r > 5.0 else ""
         return (f"compressor {who} {verb} at {temps}, above compressor.max_discharge_temperature {limit:.2f} K "
-                f"({limit - 273.15:.0f} degC), at a pressure ratio of {ratio} (common practice for a "
-                f"reciprocating stage: about 3 to 5); {self._more_stages(fluid, inlet, p_out)}")
+                f"({limit - 273.15:.0f} degC), at a pressure ratio of {ratio}{practice}; "
+                f"{self._more_stages(fluid, inlet, p_out)}")
 
     def _more_stages(self, fluid, inlet, p_out):
         """Advice: the fewest stages (up to the 12 allowed) that keep every discharge of this

@@ -25,6 +25,8 @@ def test_demo_solves_and_balances(path):
     result = solve_scenario(sc)
     s = result.summary()
     assert result.solve.converged and not any("did not converge" in w for w in result.warnings)
+    # A demo is a design an engineer could sign: nothing to warn about (hot stages, a chiller, ...).
+    assert result.warnings == []
     assert abs(result.energy_balance_residual) < 1e-8
     ideal_plus_losses = result.ideal_work_per_kg_liquid + sum(result.exergy_losses_per_kg_liquid().values())
     assert ideal_plus_losses == pytest.approx(result.work_per_kg_liquid, rel=1e-8)
