@@ -282,6 +282,14 @@ def _quantity(data, key, dimension, full):
         raise ScenarioError(f"{full}: {err}") from None
 
 
+def _temperature(data, key, full):
+    """A temperature key [K], above 0 K and at most 1000 K."""
+    T = _quantity(data, key, "temperature", full)
+    if not 0 < T <= 1000:
+        raise ScenarioError(f"{full} must be above 0 K and at most 1000 K, got {data[key]!r}")
+    return T
+
+
 def _number(data, key, full):
     value = data[key]
     if isinstance(value, bool) or not isinstance(value, (int, float, str)):
@@ -518,10 +526,7 @@ def _parse_compressor(section):
                             f"compressor.isentropic_efficiency, not compressor.isothermal_efficiency and compressor.{other}")
     limit = DEFAULT_MAX_DISCHARGE_TEMPERATURE
     if section.get("max_discharge_temperature") is not None:
-        limit = _quantity(section, "max_discharge_temperature", "temperature", "compressor.max_discharge_temperature")
-        if not 0 < limit <= 1000:
-            raise ScenarioError(f"compressor.max_discharge_temperature must be above 0 K and at most 1000 K, got "
-                                f"{section['max_discharge_temperature']!r}")
+        limit = _temperature(section, "max_discharge_temperature", "compressor.max_discharge_temperature")
     if section.get("isothermal_efficiency") is not None:
         eta = _number(section, "isothermal_efficiency", "compressor.isothermal_efficiency")
         _between(eta, "compressor.isothermal_efficiency", 0, 1, given=section["isothermal_efficiency"])
@@ -540,10 +545,7 @@ def _parse_compressor(section):
 def _parse_aftercooler(section, T0, p_high, p_low):
     T_out = T0
     if section.get("outlet_temperature") is not None:
-        T_out = _quantity(section, "outlet_temperature", "temperature", "aftercooler.outlet_temperature")
-        if not 0 < T_out <= 1000:
-            raise ScenarioError(f"aftercooler.outlet_temperature must be above 0 K and at most 1000 K, got "
-                                f"{section['outlet_temperature']!r}")
+        T_out = _temperature(section, "outlet_temperature", "aftercooler.outlet_temperature")
     dp = 0.0
     if section.get("pressure_drop") is not None:
         dp = _quantity(section, "pressure_drop", "pressure", "aftercooler.pressure_drop")

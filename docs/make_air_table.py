@@ -73,45 +73,41 @@ def measure():
     return rows
 
 
-def yield_table(rows):
-    out = ["| system | eta_c | eps | published | lhsim | lhsim - published | per cent | independent CoolProp calculation | tested |",
-           "|---|---|---|---|---|---|---|---|---|"]
+_HEADER = ["| system | eta_c | eps | published | lhsim | lhsim - published | per cent | independent CoolProp "
+           "calculation | tested |", "|---|---|---|---|---|---|---|---|---|"]
+
+
+def _table(rows, lhsim_of, key, quantity, digits, with_ideal=False):
+    """One comparison table: ``lhsim_of(row, result)`` against the published column ``key``."""
+    out = list(_HEADER)
     for e in rows:
         row, r = e["row"], e["result"]
-        if row["system"] == "ideal reversible":
+        ideal = row["system"] == "ideal reversible"
+        if ideal and not with_ideal:
             continue
-        d, pc = diff_cells(r.liquid_yield, row["yield"], 4)
-        out.append(f"| {row['system']} | {row['eta_c']:g} | {row['eps']:.2f} | {row['yield_text']} | "
-                   f"{r.liquid_yield:.4f} | {d} | {pc} | {row['coolprop_yield_text']} | {tested(row, 'yield')} |")
+        n = digits(row) if callable(digits) else digits
+        value = lhsim_of(row, r)
+        d, pc = diff_cells(value, row[key], n)
+        eps = f"{row['eps']:.2f}" if row["eps"] is not None else ""
+        out.append(f"| {row['system']} | {row['eta_c']:g} | {eps} | {row[key + '_text']} | {value:.{n}f} | {d} | "
+                   f"{pc} | {row['coolprop_' + key + '_text']} | {tested(row, quantity)} |")
     return "\n".join(out)
+
+
+def yield_table(rows):
+    return _table(rows, lambda row, r: r.liquid_yield, "yield", "yield", 4)
 
 
 def work_table(rows):
-    out = ["| system | eta_c | eps | published | lhsim | lhsim - published | per cent | independent CoolProp calculation | tested |",
-           "|---|---|---|---|---|---|---|---|---|"]
-    for e in rows:
-        row, r = e["row"], e["result"]
-        lhsim = (r.ideal_work_per_kg_liquid if row["system"] == "ideal reversible" else r.work_per_kg_liquid) / 1e3
-        eps = f"{row['eps']:.2f}" if row["eps"] is not None else ""
-        digits = 1 if row["system"] == "ideal reversible" else 0
-        d, pc = diff_cells(lhsim, row["work_kJ_per_kg_liquid"], digits)
-        out.append(f"| {row['system']} | {row['eta_c']:g} | {eps} | {row['work_kJ_per_kg_liquid_text']} | {lhsim:.{digits}f} | "
-                   f"{d} | {pc} | {row['coolprop_work_kJ_per_kg_liquid_text']} | {tested(row, 'work')} |")
-    return "\n".join(out)
+    def work(row, r):
+        return (r.ideal_work_per_kg_liquid if row["system"] == "ideal reversible" else r.work_per_kg_liquid) / 1e3
+
+    return _table(rows, work, "work_kJ_per_kg_liquid", "work", lambda row: 1 if row["system"] == "ideal reversible" else 0,
+                  with_ideal=True)
 
 
 def merit_table(rows):
-    out = ["| system | eta_c | eps | published | lhsim | lhsim - published | per cent | independent CoolProp calculation | tested |",
-           "|---|---|---|---|---|---|---|---|---|"]
-    for e in rows:
-        row, r = e["row"], e["result"]
-        if row["system"] == "ideal reversible":
-            continue
-        d, pc = diff_cells(r.figure_of_merit, row["figure_of_merit"], 4)
-        out.append(f"| {row['system']} | {row['eta_c']:g} | {row['eps']:.2f} | {row['figure_of_merit_text']} | "
-                   f"{r.figure_of_merit:.4f} | {d} | {pc} | {row['coolprop_figure_of_merit_text']} | "
-                   f"{tested(row, 'figure of merit')} |")
-    return "\n".join(out)
+    return _table(rows, lambda row, r: r.figure_of_merit, "figure_of_merit", "figure of merit", 4)
 
 
 def compressed_table(rows):
