@@ -20,6 +20,12 @@ from properties import get_fluid
 ATM = 101325.0
 
 
+# The krypton plant of the first test below, as a scenario file with the UA the streams cannot use.
+KRYPTON_YAML = ("gas: krypton\nlow_pressure: 1.853 bar\nhigh_pressure: 76.54 bar\n"
+                "compressor: {isothermal_efficiency: 0.8336}\nrecuperator: {ua: 689.1 W/K, zones: 80}\n"
+                "production: {liquid_rate: 17.73 kg/h}\n")
+
+
 def krypton(ua):
     return parse_scenario({
         "gas": "krypton", "low_pressure": "1.853 bar", "high_pressure": "76.54 bar",
@@ -86,9 +92,7 @@ def test_every_sizing_choice_reports_its_own_residual():
 
 def test_text_output_says_the_solve_missed(capsys, tmp_path):
     path = tmp_path / "kr.yaml"
-    path.write_text("gas: krypton\nlow_pressure: 1.853 bar\nhigh_pressure: 76.54 bar\n"
-                    "compressor: {isothermal_efficiency: 0.8336}\nrecuperator: {ua: 689.1 W/K, zones: 80}\n"
-                    "production: {liquid_rate: 17.73 kg/h}\n")
+    path.write_text(KRYPTON_YAML)
     assert cli.main(["run", str(path)]) == 0
     out = capsys.readouterr().out
     assert "target not reached" in out and "converged" not in out.split("Solve")[1].split("\n")[1]
@@ -223,9 +227,7 @@ def test_cli_json_notes_a_missed_target_on_stderr_only(tmp_path, capsys):
     import json
 
     path = tmp_path / "kr.yaml"
-    path.write_text("gas: krypton\nlow_pressure: 1.853 bar\nhigh_pressure: 76.54 bar\n"
-                    "compressor: {isothermal_efficiency: 0.8336}\nrecuperator: {ua: 689.1 W/K, zones: 80}\n"
-                    "production: {liquid_rate: 17.73 kg/h}\n")
+    path.write_text(KRYPTON_YAML)
     assert cli.main(["run", str(path), "--json"]) == 0
     out, err = capsys.readouterr()
     data = json.loads(out)
