@@ -518,9 +518,31 @@ class Liquefier:
         from properties import PropertyRangeError
 
         try:
-            return self._solve(xtol, maxiter)
+            result = self._solve(xtol, maxiter)
         except PropertyRangeError as err:
             raise ScenarioError(f"the scenario asks for a state outside the property range: {err}") from None
+        except OverflowError as err:
+            raise ScenarioError(f"the scenario's numbers are too large to compute with ({err}); check "
+                                f"production and heat_leak") from None
+        self._check_finite(result)
+        return result
+
+    def _check_finite(self, result):
+        """An impossible number (inf, nan) is never a result: say which input made it."""
+        bad = [k for k, v in result.summary().items() if isinstance(v, float) and not math.isfinite(v)]
+        if not bad:
+            return
+        prod = self.scenario.production
+        given = ""
+        if prod is not None:
+            given = "; ".join(f"production.{k} {v:g} (SI)" for k, v in (
+                ("liquid_rate", prod.liquid_mass_rate), ("liquid_rate", prod.liquid_volume_rate),
+                ("compressor_flow", prod.compressor_flow)) if v is not None)
+        if self.scenario.heat_leak > 0:
+            given += f"{'; ' if given else ''}heat_leak {self.scenario.heat_leak:g} W"
+        raise ScenarioError(f"the scenario gives numbers too large to represent ({', '.join(bad[:3])} "
+                            f"{'are' if len(bad) > 1 else 'is'} infinite or undefined){': ' + given if given else ''}; "
+                            f"give a production and a heat leak a plant can have")
 
     # -- checks -----------------------------------------------------------------------
 
@@ -625,6 +647,11 @@ class Liquefier:
         def yield_of(duty):
             return yield_at(hot_in.h - duty)
 
+        if sc.heat_leak > 0 and not yield_of(rec.max_hot_duty(fl, hot_in, vapour.T)) > 0:
+            raise NoLiquefactionError(
+                f"no liquid: heat_leak {sc.heat_leak:g} W takes more than all the refrigeration this cycle can "
+                f"make at this production, even with a perfect {rec.key.replace('_', ' ')}; lower heat_leak or "
+                f"raise the production")
         section = Section(fl, rec, hot_in, lambda d: [(vapour, 1.0 - yield_of(d))], vapour.T)
         lowest = max(0.0, hot_in.h - vapour.h)  # below this duty no liquid (liquid-rate target)
         duty, prof, report = solve_section(section, lambda d: flow_at(yield_of(d)), lowest, xtol, maxiter)
@@ -639,6 +666,12 @@ class Liquefier:
         return duty, prof, report, y, eps, eps_crit, flow_at(y)
 
     def _critical_message(self, eps, eps_crit, key):
+        Q = self.scenario.heat_leak
+        if Q > 0 and (eps >= eps_crit or not math.isfinite(eps)):
+            # The recuperator does its part; what is left of the Joule-Thomson effect goes into the leak.
+            return (f"no liquid: heat_leak {Q:g} W takes all the refrigeration this cycle makes at this "
+                    f"production (the {key} effectiveness {eps:.4f} is above its critical value without "
+                    f"the leak); lower heat_leak or raise the production")
         if eps_crit >= 1.0:
             return (f"no liquid: even a perfect {key} could not make liquid here (its critical "
                     f"effectiveness would be {eps_crit:.4f}, above 1): the heat leak or the conditions take "

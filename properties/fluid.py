@@ -5,6 +5,7 @@ reference multiparameter equations of state).  One ``AbstractState`` is kept per
 per process (:func:`get_fluid`); states handed out are immutable :class:`State` objects.
 """
 
+from dataclasses import replace
 from functools import lru_cache
 import math
 import numbers
@@ -33,6 +34,8 @@ _PHASES = {
 # A pressure this close (relative) to the critical pressure is "at" it: CoolProp's
 # (p, h) flash has no solution there (see shared coolprop notes).
 _CRITICAL_PRESSURE_BAND = 1e-9
+# How far above the critical pressure (relative) such a flash is done instead [-].
+CRITICAL_NUDGE = 1e-6
 
 
 def _is_number(x):
@@ -167,27 +170,49 @@ class Fluid:
         self._update(CP.PT_INPUTS, p, T, asked)
         return self._snapshot(p)
 
-    def _check_ph_pressure(self, p, asked):
+    def _flash_pressure(self, p, asked):
+        """The pressure a (p, h) or (p, s) flash is done at: ``p``, or, within 1e-9 of the critical
+        pressure, where CoolProp's flash has no solution (see the CoolProp notes), the critical
+        pressure raised by :data:`CRITICAL_NUDGE` (1 ppm: far below any pressure a plant knows).
+        The state is still reported at ``p``."""
         self._check_p(p, asked)
         if abs(p / self.p_critical - 1.0) < _CRITICAL_PRESSURE_BAND:
-            self._fail(asked, "the (p, h) and (p, s) flashes are undefined at exactly the critical "
-                              f"pressure {_fmt_p(self.p_critical)}; use a pressure slightly away from it")
+            return self.p_critical * (1.0 + CRITICAL_NUDGE)
+        return p
 
     def state_ph(self, p, h):
         """State at pressure ``p`` [Pa] and specific enthalpy ``h`` [J/kg]."""
         asked = f"p = {_fmt_p(p)}, h = {h / 1e3:.6g} kJ/kg"
-        self._check_ph_pressure(p, asked)
-        self._update(CP.HmassP_INPUTS, h, p, asked)
+        self._update(CP.HmassP_INPUTS, h, self._flash_pressure(p, asked), asked)
         self._check_result(asked)
-        return self._snapshot(p)
+        return self._polished(self._snapshot(p), h=h, asked=asked)
 
     def state_ps(self, p, s):
         """State at pressure ``p`` [Pa] and specific entropy ``s`` [J/(kg K)]."""
         asked = f"p = {_fmt_p(p)}, s = {s / 1e3:.6g} kJ/(kg K)"
-        self._check_ph_pressure(p, asked)
-        self._update(CP.PSmass_INPUTS, p, s, asked)
+        self._update(CP.PSmass_INPUTS, self._flash_pressure(p, asked), s, asked)
         self._check_result(asked)
-        return self._snapshot(p)
+        return self._polished(self._snapshot(p), s=s, asked=asked)
+
+    def _polished(self, state, asked, h=None, s=None):
+        """The flash's state carrying exactly the enthalpy (or entropy) asked for.
+
+        CoolProp's flash meets its input to about 1e-8 (worse near the critical point), which
+        shows in the plant's energy balance and as exergy losses a hair below zero.  The small
+        miss is taken up at constant pressure, dh = T ds; a large one means the flash failed.
+        """
+        if h is not None:
+            miss = h - state.h
+            scale = abs(h) + 1e4
+            polished = replace(state, h=float(h), s=state.s + miss / state.T)
+        else:
+            miss = (s - state.s) * state.T
+            scale = abs(state.h) + 1e4
+            polished = replace(state, s=float(s), h=state.h + miss)
+        if abs(miss) > 1e-5 * scale:
+            self._fail(asked, f"CoolProp's flash missed it by {abs(miss) / 1e3:.3g} kJ/kg (near the critical "
+                              f"point its flash is unreliable); use a state slightly away from there")
+        return polished
 
     def _saturated(self, p, quality):
         kind = "saturated liquid" if quality == 0 else "saturated vapour"

@@ -65,8 +65,7 @@ class PhMarch:
         which saves building a :class:`State` where the march needs temperatures alone."""
         fl = self.fluid
         if not (0.0 < p <= fl.p_max) or abs(p / fl.p_critical - 1.0) < 1e-9 or h != h:
-            fl._check_ph_pressure(p, f"p = {p / 1e5:.6g} bar, h = {h / 1e3:.6g} kJ/kg")  # raises
-            return self._flash(p, h, full)
+            return self._flash(p, h, full)  # the flash checks the pressure, and steps off the critical one
         sat = self.bounds(p)
         side = None
         if sat is not None:
