@@ -8,10 +8,12 @@ names the key, what was expected and what was given.
 
 from dataclasses import dataclass, field, asdict
 import difflib
+import os
+import re
 from typing import Optional
 
 from cycle.errors import ScenarioError
-from cycle.units import UnitError, parse_quantity
+from cycle.units import UnitError, parse_quantity, printable, shown
 
 DEFAULT_AMBIENT_TEMPERATURE = 300.0  # K; the reference temperature of the textbook tables
 DEFAULT_ZONES = 50
@@ -247,9 +249,9 @@ def key_kind(key, where="sweep."):
     node = SCHEMA
     for part in key.split("."):
         if not isinstance(node, dict) or part not in node:
-            close = difflib.get_close_matches(key, list(all_keys()), n=1, cutoff=0.5)
+            close = difflib.get_close_matches(key, list(all_keys()), n=1, cutoff=0.5) if len(key) <= 100 else []
             hint = f"; did you mean {close[0]}?" if close else ""
-            raise ScenarioError(f"{where}{key}: not a scenario key{hint}")
+            raise ScenarioError(f"{where}{printable(key, 60)}: not a scenario key{hint}")
         node = node[part]
     if isinstance(node, dict):
         raise ScenarioError(f"{where}{key}: a section cannot be {'swept' if where == 'sweep.' else 'varied'}; "
@@ -260,14 +262,14 @@ def key_kind(key, where="sweep."):
 def _check_keys(data, schema, prefix=""):
     if not isinstance(data, dict):
         raise ScenarioError(f"{prefix.rstrip('.') or 'scenario'} must be a mapping of keys to values, "
-                            f"got {data!r}")
+                            f"got {shown(data)}")
     for key, value in data.items():
         full = prefix + str(key)
         if key not in schema:
             candidates = list(all_keys(schema, prefix)) if prefix else list(all_keys(schema))
-            close = difflib.get_close_matches(full, candidates, n=1, cutoff=0.5)
+            close = difflib.get_close_matches(full, candidates, n=1, cutoff=0.5) if len(full) <= 100 else []
             hint = f"; did you mean {close[0]}?" if close else f"; valid keys here: {', '.join(schema)}"
-            raise ScenarioError(f"unknown key {full}{hint}")
+            raise ScenarioError(f"unknown key {printable(full, 60)}{hint}")
         if isinstance(schema[key], dict):
             _check_keys(value if value is not None else {}, schema[key], full + ".")
 
@@ -293,7 +295,7 @@ def _temperature(data, key, full):
 def _number(data, key, full):
     value = data[key]
     if isinstance(value, bool) or not isinstance(value, (int, float, str)):
-        raise ScenarioError(f"{full} must be a number, got {value!r}")
+        raise ScenarioError(f"{full} must be a number, got {shown(value)}")
     try:
         return parse_quantity(value, "dimensionless")
     except UnitError as err:
@@ -303,9 +305,9 @@ def _number(data, key, full):
 def _integer(data, key, full, low, high):
     value = data[key]
     if isinstance(value, bool) or not isinstance(value, int):
-        raise ScenarioError(f"{full} must be a whole number from {low} to {high}, got {value!r}")
+        raise ScenarioError(f"{full} must be a whole number from {low} to {high}, got {shown(value)}")
     if not low <= value <= high:
-        raise ScenarioError(f"{full} must be a whole number from {low} to {high}, got {value}")
+        raise ScenarioError(f"{full} must be a whole number from {low} to {high}, got {shown(value)}")
     return value
 
 
@@ -363,10 +365,15 @@ def parse_scenario(data):
     name = data.get("name") or ""
     if not isinstance(name, str):
         name = str(name)
+    # The name is printed as given: no control character (a terminal escape sequence) or
+    # lone surrogate (unprintable) reaches the output, each is written as an escape.
+    name = printable(name)
 
     _require(data, "gas", "gas", "a fluid name such as 'nitrogen'")
     from properties.fluids import resolve_fluid_name
 
+    if not isinstance(data["gas"], str) or len(data["gas"]) > 100:
+        raise ScenarioError(f"gas must be a fluid name such as 'nitrogen', got {shown(data['gas'])}")
     try:
         gas = resolve_fluid_name(str(data["gas"]))
     except ValueError as err:
@@ -604,51 +611,177 @@ def _parse_production(section):
             rate = parse_quantity(value, "volume_flow")
         except UnitError:
             raise ScenarioError(f"production.liquid_rate: expected a mass flow such as '8 kg/h' or a volume "
-                                f"flow of liquid such as '10 L/h', got {value!r}") from None
+                                f"flow of liquid such as '10 L/h', got {shown(value)}") from None
         spec = ProductionSpec(liquid_volume_rate=rate)
     if rate <= 0:
         raise ScenarioError(f"production.liquid_rate must be above 0, got {value!r}")
     return spec
 
 
-def read_mapping(path):
-    """Read a YAML scenario file into a plain mapping, without validating it.
+# Limits on a scenario file, checked before any value is built (docs/scenario-format.md,
+# "Limits"): its size, how deep sections and lists nest, and how many values it holds once
+# every alias is expanded (about what a file of the largest size holds written out, so that
+# only aliases repeating values reach it: a few lines of aliases can otherwise stand for
+# billions of values).
+MAX_FILE_BYTES = 1024 * 1024
+MAX_DEPTH = 20
+MAX_VALUES = 250_000
 
-    Raises
-    ------
-    ScenarioError
-        If the file is missing, unreadable, not YAML or empty.
-    """
+# Characters YAML allows in a document (YAML 1.1, 5.1: printable characters); any other one,
+# a NUL byte for instance, is refused with its line and column.
+_NOT_YAML = re.compile("[^\t\n\r\x20-\x7e\x85\xa0-\ud7ff\ue000-\ufffd\U00010000-\U0010ffff]")
+
+
+def _yaml_loader():
+    """PyYAML's C safe loader where built (much faster), else the pure-Python one, that
+    refuses a key given twice in one mapping and a key that is not a name or number."""
     import yaml
 
-    class Loader(yaml.SafeLoader):
-        """Safe YAML that refuses a key given twice in one mapping."""
+    base = getattr(yaml, "CSafeLoader", yaml.SafeLoader)
+
+    class Loader(base):
+        """Safe YAML for scenario files; ``scenario_path`` names the file in messages."""
+
+        scenario_path = "<scenario>"
 
     def mapping(loader, node, deep=False):
         seen = set()
         for key_node, _ in node.value:
-            key = loader.construct_object(key_node, deep=deep)
+            if key_node.tag == "tag:yaml.org,2002:merge":  # <<: *defaults, merged below
+                continue
+            key = loader.construct_object(key_node, deep=True)
+            line = key_node.start_mark.line + 1
+            try:
+                hash(key)
+            except TypeError:
+                raise ScenarioError(f"scenario file {loader.scenario_path}: line {line}: a key must be a name, "
+                                    f"got the {type(key).__name__} {shown(key)}") from None
             if key in seen:
-                raise ScenarioError(f"scenario file {path}: key {key} is given twice (line "
-                                    f"{key_node.start_mark.line + 1}); give each key once")
+                raise ScenarioError(f"scenario file {loader.scenario_path}: key {printable(key, 60)} is given "
+                                    f"twice (line {line}); give each key once")
             seen.add(key)
         return yaml.SafeLoader.construct_mapping(loader, node, deep=deep)
 
     Loader.add_constructor(yaml.resolver.BaseResolver.DEFAULT_MAPPING_TAG, mapping)
+    return Loader
+
+
+def _measure(root, path):
+    """Refuse a YAML node graph nested deeper than :data:`MAX_DEPTH`, holding more than
+    :data:`MAX_VALUES` values with aliases expanded, or holding itself through an alias.
+
+    Aliases share nodes, so the expanded size is counted once per node (a walk with an
+    explicit stack: no recursion, time in proportion to the file, not to the expansion)."""
+    import yaml
+
+    def children(node):
+        if isinstance(node, yaml.MappingNode):
+            return [n for pair in node.value for n in pair]
+        if isinstance(node, yaml.SequenceNode):
+            return node.value
+        return ()
+
+    size, depth, open_ = {}, {}, set()
+    stack = [(root, False)]
+    while stack:
+        node, closing = stack.pop()
+        key = id(node)
+        if closing:
+            open_.discard(key)
+            kids = children(node)
+            size[key] = 1 + sum(size[id(k)] for k in kids)
+            collection = isinstance(node, (yaml.MappingNode, yaml.SequenceNode))
+            depth[key] = 1 + max((depth[id(k)] for k in kids), default=0) if collection else 0
+            line = node.start_mark.line + 1
+            if depth[key] > MAX_DEPTH:
+                raise ScenarioError(f"scenario file {path}: the value at line {line} nests sections or lists "
+                                    f"more than {MAX_DEPTH} levels deep; at most {MAX_DEPTH} are allowed")
+            if size[key] > MAX_VALUES:
+                raise ScenarioError(f"scenario file {path}: the value at line {line} holds more than "
+                                    f"{MAX_VALUES} values once its aliases are expanded (each use of an alias "
+                                    f"counts its values again); at most {MAX_VALUES} are allowed")
+            continue
+        if key in size:
+            continue
+        if key in open_:
+            raise ScenarioError(f"scenario file {path}: the value at line {node.start_mark.line + 1} contains "
+                                f"itself through an alias; a value cannot hold itself")
+        open_.add(key)
+        stack.append((node, True))
+        for kid in children(node):
+            if id(kid) not in size:
+                stack.append((kid, False))
+
+
+def read_mapping(path):
+    """Read a YAML scenario file into a plain mapping, without validating it.
+
+    The file is read once and refused before any value is built if it is larger than
+    :data:`MAX_FILE_BYTES`, holds a character YAML does not allow (a NUL byte), nests deeper
+    than :data:`MAX_DEPTH` or expands to more than :data:`MAX_VALUES` values through aliases.
+    Merge keys (``<<: *defaults``) are YAML and are accepted.
+
+    Raises
+    ------
+    ScenarioError
+        If the file is missing, unreadable, too large, not YAML or empty, or beyond a limit.
+    """
+    import yaml
+
     try:
-        with open(path, encoding="utf-8") as handle:
-            data = yaml.load(handle, Loader=Loader)
-    except UnicodeDecodeError:
-        raise ScenarioError(f"scenario file {path} is not UTF-8 text; save it as UTF-8") from None
+        with open(path, "rb") as handle:
+            raw = handle.read(MAX_FILE_BYTES + 1)
+            if len(raw) > MAX_FILE_BYTES:
+                try:
+                    size = os.fstat(handle.fileno()).st_size
+                except OSError:
+                    size = 0
+                # a device or a pipe has no size to tell
+                size = f"{size} bytes" if size > MAX_FILE_BYTES else f"more than {MAX_FILE_BYTES} bytes"
+                raise ScenarioError(f"scenario file {path} is too large: {size}, at most {MAX_FILE_BYTES} bytes "
+                                    f"(1 MiB) are read; give many sweep points as ranges")
     except FileNotFoundError:
         raise ScenarioError(f"scenario file {path} not found") from None
     except OSError as err:
-        raise ScenarioError(f"scenario file {path} could not be read: {err.strerror}") from None
+        raise ScenarioError(f"scenario file {path} could not be read: {err.strerror or err}") from None
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError:
+        raise ScenarioError(f"scenario file {path} is not UTF-8 text; save it as UTF-8") from None
+    bad = _NOT_YAML.search(text)
+    if bad:
+        line = text.count("\n", 0, bad.start()) + 1
+        column = bad.start() - (text.rfind("\n", 0, bad.start()) + 1) + 1
+        raise ScenarioError(f"scenario file {path}: line {line}, column {column} holds the control character "
+                            f"U+{ord(bad.group()):04X}, which YAML does not allow; remove it")
+    loader = _yaml_loader()(text)
+    loader.scenario_path = path
+    try:
+        node = loader.get_single_node()
+        if node is None:
+            data = None
+        else:
+            _measure(node, path)
+            data = loader.construct_document(node)
     except yaml.YAMLError as err:
         mark = getattr(err, "problem_mark", None)
         where = f" at line {mark.line + 1}" if mark is not None else ""
+        problem = getattr(err, "problem", None) or str(err)
+        if "nesting depth" in str(problem):  # libyaml's own limit, 1000 levels
+            raise ScenarioError(f"scenario file {path}{where}: sections or lists nest more than {MAX_DEPTH} "
+                                f"levels deep; at most {MAX_DEPTH} are allowed") from None
         raise ScenarioError(f"scenario file {path} is not valid YAML{where}: "
-                            f"{getattr(err, 'problem', None) or err}") from None
+                            f"{printable(' '.join(str(problem).split()), 200)}") from None
+    except ScenarioError:
+        raise
+    except ValueError as err:  # an integer of more digits than Python converts (4300)
+        raise ScenarioError(f"scenario file {path} holds a value that cannot be read: "
+                            f"{printable(str(err).split(':')[0], 100)}") from None
+    except RecursionError:  # the pure-Python parser on a deeply nested file
+        raise ScenarioError(f"scenario file {path}: sections or lists nest more than {MAX_DEPTH} levels "
+                            f"deep; at most {MAX_DEPTH} are allowed") from None
+    finally:
+        loader.dispose()
     if data is None:
         raise ScenarioError(f"scenario file {path} is empty: expected a mapping with gas, low_pressure, ...")
     return data
@@ -666,7 +799,27 @@ def load_scenario(path):
     -------
     Scenario
     """
+    return load_scenario_and_sweep(path)[0]
+
+
+def load_scenario_and_sweep(path):
+    """Read a YAML scenario file once; validate the scenario and hand back its sweep section.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        Path of the scenario file.
+
+    Returns
+    -------
+    scenario : Scenario
+        The scenario without its sweep section.
+    sweep : object or None
+        The ``sweep:`` section as given (not validated), None where the file has none.
+    """
     data = read_mapping(path)
+    sweep = None
     if isinstance(data, dict):
+        sweep = data.get("sweep")
         data = {k: v for k, v in data.items() if k != "sweep"}
-    return parse_scenario(data)
+    return parse_scenario(data), sweep
