@@ -342,8 +342,9 @@ def _limit_message(key, mode, target, achieved, res, profile, unit):
         why = (f"at {achieved:.4g} {unit} the duty is already the largest the second law allows (pinch "
                f"{profile.min_approach:.3g} K {where})")
     return (f"{key}.{mode} {target:g} {unit} is more than these streams can use: {why}, so the "
-            f"{key.replace('_', ' ')} acts as a perfect one and more UA changes nothing; the target is missed "
-            f"by {res:+.4g} {unit} ({100.0 * res / target:+.1f} %) and the result is that of the perfect exchanger")
+            f"{key.replace('_', ' ')} acts as a perfect one and more UA changes nothing; the target is missed: "
+            f"{-res:.4g} {unit} ({-100.0 * res / target:.1f} %) of it is more than the streams can use, and the "
+            f"result is that of the perfect exchanger")
 
 
 def _bracket(f, guess, lo, hi, decreasing):

@@ -296,8 +296,9 @@ class DualPressureLindeHampson(Liquefier):
         elif vapour_fraction is not None and vapour_fraction < i:
             warn.append(f"the intermediate receiver gets {vapour_fraction:.4f} of vapour per kg compressed, less "
                         f"than dual_pressure.recirculated_fraction {i:g}: {i - vapour_fraction:.4f} of its liquid "
-                        f"goes back with the vapour and boils in the recuperator; a fraction of at most "
-                        f"{vapour_fraction:.4f} returns vapour only")
+                        f"goes back with the vapour and boils in the recuperator; for a vapour-only return lower the "
+                        f"fraction (the vapour the receiver gets changes with it) or raise "
+                        f"dual_pressure.intermediate_pressure")
         return self._finish(
             y=y, m=m, streams=streams, compressions=[(low, 1.0 - i), (high, 1.0)], after_duty=after_duty,
             makeup=makeup, liquid=liquid, throttle_outlet=valve_out,

@@ -363,6 +363,8 @@ def parse_scenario(data):
     _check_keys(data, SCHEMA)
 
     name = data.get("name") or ""
+    if isinstance(name, (list, dict)):
+        raise ScenarioError(f"name must be text, got {shown(name)}")
     if not isinstance(name, str):
         name = str(name)
     # The name is printed as given: no control character (a terminal escape sequence) or
@@ -609,9 +611,10 @@ def _parse_production(section):
     except UnitError:
         try:
             rate = parse_quantity(value, "volume_flow")
-        except UnitError:
-            raise ScenarioError(f"production.liquid_rate: expected a mass flow such as '8 kg/h' or a volume "
-                                f"flow of liquid such as '10 L/h', got {shown(value)}") from None
+        except UnitError as err:
+            hint = str(err) if "m^3" in str(err) else (f"expected a mass flow such as '8 kg/h' or a volume flow "
+                                                      f"of liquid such as '10 L/h', got {shown(value)}")
+            raise ScenarioError(f"production.liquid_rate: {hint}") from None
         spec = ProductionSpec(liquid_volume_rate=rate)
     if rate <= 0:
         raise ScenarioError(f"production.liquid_rate must be above 0, got {value!r}")

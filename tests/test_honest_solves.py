@@ -56,7 +56,7 @@ def test_a_ua_beyond_what_the_streams_can_use_is_not_converged_and_says_by_how_m
     assert solve.residual == pytest.approx(solve.achieved - 689.1, rel=1e-12)
     assert result.recuperator.min_approach <= TOUCH_APPROACH
     (text,) = result.warnings
-    assert "missed by" in text and "perfect" in text and "%" in text
+    assert "the target is missed: 251 W/K (36.4 %)" in text and "perfect" in text
     assert "touch at" not in text  # the old, wrong wording
     # Where the streams touch, the UA is unbounded: null, as the glossary says.
     s = result.summary()
@@ -217,7 +217,7 @@ def test_a_sweep_point_that_missed_its_target_says_so_in_its_message():
             "compressor": {"isothermal_efficiency": 0.8336}, "recuperator": {"ua": "689.1 W/K", "zones": 80},
             "production": {"liquid_rate": "17.73 kg/h"}}
     status, message, summary = run_point(base)
-    assert status == "ok" and "more than these streams can use" in message and "missed by" in message
+    assert status == "ok" and "more than these streams can use" in message and "the target is missed" in message
     assert summary["recuperator_UA_W_per_K"] is None
     status, message, _ = run_point(dict(base, recuperator={"ua": "300 W/K", "zones": 80}))
     assert (status, message) == ("ok", "")
@@ -277,3 +277,18 @@ def test_dual_pressure_edges_give_one_line_reasons(data, message):
     with pytest.raises((ScenarioError, NoLiquefactionError), match=message) as info:
         solve_scenario(parse_scenario(data))
     assert "\n" not in str(info.value)
+
+
+@pytest.mark.parametrize("name", [[1, 2], {"a": 1}])
+def test_a_name_that_is_not_text_is_refused(name):
+    data = {"name": name, "gas": "nitrogen", "low_pressure": "1 bar", "high_pressure": "200 bar",
+            "compressor": {"isothermal_efficiency": 0.6}, "recuperator": {"effectiveness": 0.97}}
+    with pytest.raises(ScenarioError, match="^name must be text, got "):
+        parse_scenario(data)
+
+
+def test_liquid_rate_in_m3_per_h_hints_at_the_power():
+    data = {"gas": "nitrogen", "low_pressure": "1 bar", "high_pressure": "200 bar", "production": {"liquid_rate": "0.01 m3/h"},
+            "compressor": {"isothermal_efficiency": 0.6}, "recuperator": {"effectiveness": 0.97}}
+    with pytest.raises(ScenarioError, match=r"production.liquid_rate: .*did you mean '0.01 m\^3/h'"):
+        parse_scenario(data)
