@@ -44,7 +44,7 @@ def run(scenario):
     return solve_scenario(scenario)
 
 
-def sweep(source, axes=None, out=None, workers=1, dask=None, mode=None, overwrite=True):
+def sweep(source, axes=None, out=None, workers=1, dask=None, mode=None, overwrite=True, dask_timeout=10.0):
     """Run a sweep and return its results as a DataFrame (one row per point).
 
     The frame holds the columns of the results file, in its order (swept quantities in the
@@ -69,6 +69,11 @@ def sweep(source, axes=None, out=None, workers=1, dask=None, mode=None, overwrit
         ``"grid"`` or ``"zip"``.
     overwrite : bool
         Replace an ``out`` file made by another scenario (default True in notebooks).
+    dask_timeout : float
+        Seconds to reach the scheduler at ``dask`` before giving up.
+
+    ``out`` must be in a folder that exists; a problem with it, or a kept row that does not
+    match its point, raises :class:`~cycle.errors.ScenarioError` naming the path.
     """
     from cycle.sweep import run_sweep
 
@@ -79,7 +84,8 @@ def sweep(source, axes=None, out=None, workers=1, dask=None, mode=None, overwrit
         data.setdefault("sweep", {})["mode"] = mode
     with tempfile.TemporaryDirectory() as tmp:
         path = pathlib.Path(out) if out is not None else pathlib.Path(tmp) / "sweep.csv"
-        run_sweep(data, path, workers=workers, dask=dask, overwrite=overwrite, progress=False)
+        run_sweep(data, path, workers=workers, dask=dask, overwrite=overwrite, progress=False,
+                  dask_timeout=dask_timeout)
         import pandas as pd
 
         if path.suffix.lower() == ".parquet":

@@ -81,9 +81,12 @@ def _parser():
     sweep.add_argument("scenario", metavar="SCENARIO.yaml", help="scenario file with a sweep: section")
     sweep.add_argument("--out", required=True, metavar="PATH", help="results file, .csv or .parquet")
     sweep.add_argument("--workers", type=int, default=None, metavar="N",
-                       help="local worker processes (default: the CPU count; 1 runs in this process)")
+                       help="local worker processes (default and most: the CPU count, and no more than the "
+                            "points left; 1 runs in this process)")
     sweep.add_argument("--dask", metavar="ADDRESS",
                        help="run on a Dask distributed scheduler at ADDRESS, or 'local' to start one here")
+    sweep.add_argument("--dask-timeout", type=float, default=10.0, metavar="SECONDS",
+                       help="how long to try to reach the scheduler at --dask ADDRESS (default 10)")
     sweep.add_argument("--overwrite", action="store_true",
                        help="replace an output file made by a different scenario")
 
@@ -142,16 +145,16 @@ def _fail(message, code=EXIT_INPUT):
 
 def main(argv=None):
     """Entry point of the ``lhsim`` console script; returns the exit status."""
-    args = _parser().parse_args(argv)
     commands = {"run": _cmd_run, "gas": _cmd_gas, "sweep": _cmd_sweep, "compare": _cmd_compare,
                 "optimize": _cmd_optimize, "report": _cmd_report, "plot": _cmd_plot}
-    import warnings
+    try:  # a Ctrl-C from the first moment on is an interruption, not a traceback
+        args = _parser().parse_args(argv)
+        import warnings
 
-    from cycle.errors import RecycleNotConvergedWarning
+        from cycle.errors import RecycleNotConvergedWarning
 
-    # Every command says a missed target in its own output (Warnings, JSON, the message column).
-    warnings.simplefilter("ignore", RecycleNotConvergedWarning)
-    try:
+        # Every command says a missed target in its own output (Warnings, JSON, the message column).
+        warnings.simplefilter("ignore", RecycleNotConvergedWarning)
         return commands[args.command](args)
     except BrokenPipeError:
         return 0
@@ -199,15 +202,15 @@ def _plots_folder_problem(folder):
 
 def _cmd_run(args):
     from cycle.errors import NoLiquefactionError, ScenarioError
-    from cycle.scenario import load_scenario
+    from cycle.scenario import load_scenario_and_sweep
 
     if args.plots:
         problem = _plots_folder_problem(args.plots)
         if problem:
             return _fail(f"--plots must name a directory lhsim can write into, got {args.plots}: {problem}")
     try:
-        scenario = load_scenario(args.scenario)
-        if "sweep" in scenario.source or "sweep" in _read(args.scenario):
+        scenario, sweep = load_scenario_and_sweep(args.scenario)  # the file is read once
+        if sweep is not None:
             print("lhsim: note: run solves the scenario without its sweep section; use lhsim sweep "
                   "for the points", file=sys.stderr)
         from cycle.flowsheet import solve_scenario
@@ -291,6 +294,13 @@ def _cmd_plot(args):
                      f"make one with lhsim sweep")
     if args.out and not args.out.lower().endswith((".png", ".svg")):
         return _fail(f"--out must end in .png or .svg, got {args.out}")
+    if args.out:
+        folder = pathlib.Path(args.out).absolute().parent
+        if not folder.is_dir():
+            what = "is not a folder" if folder.exists() else "does not exist"
+            return _fail(f"--out {args.out}: the folder {folder} {what}; make it first, or choose another --out")
+        if pathlib.Path(args.out).is_dir():
+            return _fail(f"--out {args.out} is a folder; give a file name ending in .png or .svg")
     from cycle.plots import sweep_chart
 
     try:
@@ -303,11 +313,15 @@ def _cmd_plot(args):
         stem = path.with_suffix("")
         name = f"{stem}-{args.y}-vs-{args.x}" + (f"-by-{args.by}" if args.by else "")
         outs = [f"{name}.png", f"{name}.svg"]
-    for out in outs:
-        fig.savefig(out, bbox_inches="tight")
     import matplotlib.pyplot as plt
 
-    plt.close(fig)
+    try:
+        for out in outs:
+            fig.savefig(out, bbox_inches="tight")
+    except OSError as err:
+        return _fail(f"{'--out ' if args.out else ''}{out}: cannot write it: {err.strerror or err}")
+    finally:
+        plt.close(fig)
     print(f"lhsim: wrote {', '.join(outs)}", file=sys.stderr)
     return 0
 
@@ -335,18 +349,25 @@ def _cmd_sweep(args):
 
     if args.workers is not None and args.workers < 1:
         return _fail(f"--workers must be 1 or more, got {args.workers}")
+    if args.dask is not None and not args.dask.strip():
+        return _fail("--dask must be local or a scheduler address such as tcp://127.0.0.1:8786, got ''")
+    if not (math.isfinite(args.dask_timeout) and args.dask_timeout > 0):
+        return _fail(f"--dask-timeout must be a number of seconds above 0, got {args.dask_timeout:g}")
     try:
         data = _read(args.scenario)
         from cycle.sweep import run_sweep
 
         try:
-            outcome = run_sweep(data, args.out, workers=args.workers, dask=args.dask, overwrite=args.overwrite)
+            outcome = run_sweep(data, args.out, workers=args.workers, dask=args.dask, overwrite=args.overwrite,
+                                dask_timeout=args.dask_timeout)
         except KeyboardInterrupt:
             print(f"lhsim: interrupted; the points finished so far are in {args.out}: run the same command "
                   f"again to compute the rest", file=sys.stderr)
             return 130
     except ScenarioError as err:
         return _fail(str(err))
+    except OSError as err:  # what the results file's own checks did not foresee
+        return _fail(f"--out {args.out}: {err.strerror or err}")
     print(f"{outcome['points']} points in {outcome['path']} ({outcome['computed']} computed now; "
           f"{outcome['no_liquid']} made no liquid, {outcome['failed']} failed or invalid)", file=sys.stderr)
     return 0
@@ -387,8 +408,10 @@ def _cmd_optimize(args):
 
 
 def _cmd_gas(args):
-    from cycle.units import UnitError, parse_quantity
+    from cycle.units import UnitError, parse_quantity, shown
 
+    if len(args.name) > 100:
+        return _fail(f"NAME must be a gas name such as nitrogen, got {shown(args.name)} ({len(args.name)} characters)")
     quality = T = p = None
     if args.quality is not None:
         if (args.temperature is None) == (args.pressure is None):
@@ -473,8 +496,17 @@ def gas_properties(fluid, T=None, p=None, quality=None):
 
 
 def main_exit():
-    """Console-script wrapper: exit with the status :func:`main` returns."""
-    sys.exit(main())
+    """Console-script wrapper: exit with the status :func:`main` returns (130 on Ctrl-C, however
+    early)."""
+    try:
+        code = main()
+    except KeyboardInterrupt:
+        try:
+            print("lhsim: interrupted", file=sys.stderr)
+        except (OSError, KeyboardInterrupt):
+            pass
+        code = 130
+    sys.exit(code)
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -1,7 +1,7 @@
 """Hostile input: a one-line error and exit status 2, never a traceback, a hang or a wrong number.
 
 Unit strings that once crashed pint or were misread, YAML that expands or nests without end,
-oversized files, odd keys and control characters in names. The
+oversized files, odd keys, control characters in names, and sweeps too large to hold. The
 documents that test the limits would be catastrophically large if expanded, so a regression
 hangs or runs out of memory visibly instead of passing (no test here is timed).
 """
@@ -134,6 +134,11 @@ def test_a_hostile_unit_in_lhsim_gas_names_the_option(capsys, text):
     refused(capsys, "gas", "nitrogen", "-T", text, "-p", "1 bar", naming="--temperature: ")
 
 
+def test_a_range_of_whole_numbers_refuses_text(capsys, tmp_path):
+    path = write(tmp_path, SCENARIO + "sweep:\n  recuperator.zones: {from: abc, to: 10, steps: 3}\n")
+    refused(capsys, "sweep", path, "--out", tmp_path / "out.csv", naming="sweep.recuperator.zones: ")
+
+
 # -- YAML that expands, nests or grows without end -----------------------------------------------
 
 def laughs(levels=12):
@@ -209,6 +214,19 @@ def test_the_c_loader_is_used_where_built(monkeypatch, tmp_path):
     assert len(made) == 1 and yaml.CSafeLoader in made[0]
 
 
+def test_lhsim_run_reads_the_scenario_file_once(capsys, monkeypatch, tmp_path):
+    import cycle.scenario
+
+    calls = []
+    original = cycle.scenario.read_mapping
+    monkeypatch.setattr(cycle.scenario, "read_mapping", lambda path: calls.append(path) or original(path))
+    path = write(tmp_path, SCENARIO + "sweep:\n  high_pressure: [150 bar, 200 bar]\n")
+    code, out, err = run(capsys, "run", path, "--json")
+    assert code == 0 and json.loads(out)["scenario"]["high_pressure"] == 200e5
+    assert "without its sweep section" in err
+    assert calls == [str(path)]
+
+
 # -- keys, names and characters ---------------------------------------------------------------
 
 def test_an_unhashable_key_is_refused(capsys, tmp_path, loader):
@@ -277,3 +295,42 @@ def test_a_huge_value_of_the_wrong_kind_is_shown_cut_short():
     message = str(info.value)
     assert message.startswith("compressor.isothermal_efficiency must be a number, got [[0, 1, 2")
     assert len(message) < 150
+
+
+# -- sweeps too large to hold ----------------------------------------------------------------
+
+def test_a_sweep_beyond_the_point_limit_is_refused_with_its_count(capsys, tmp_path):
+    # 10**15 points: expanding them first would exhaust any memory
+    sweep = ("sweep:\n  high_pressure: {from: 100 bar, to: 300 bar, steps: 100000}\n"
+             "  ambient_temperature: {from: 280 K, to: 310 K, steps: 100000}\n"
+             "  recuperator.effectiveness: {from: 0.9, to: 0.99, steps: 100000}\n")
+    out = tmp_path / "out.csv"
+    refused(capsys, "sweep", write(tmp_path, SCENARIO + sweep), "--out", out,
+            naming="sweep has 1000000000000000 points (100000 high_pressure x 100000 ambient_temperature x "
+                   "100000 recuperator.effectiveness), more than the limit of 1000000")
+    assert not out.exists()
+
+
+def test_the_point_limit_counts_zip_sweeps_by_their_common_length():
+    from cycle.sweep import expand
+
+    data = yaml.safe_load(SCENARIO)
+    data["sweep"] = {"mode": "zip", "high_pressure": ["150 bar", "200 bar", "250 bar"],
+                     "recuperator.effectiveness": [0.9, 0.92, 0.94]}
+    assert len(expand(data, max_points=3)[1]) == 3
+    with pytest.raises(ScenarioError, match=r"^sweep has 3 points \(zip\), more than the limit of 2;"):
+        expand(data, max_points=2)
+
+
+def test_the_point_limit_can_be_raised():
+    from cycle.sweep import expand
+
+    data = yaml.safe_load(SCENARIO)
+    data["sweep"] = {"high_pressure": {"from": "150 bar", "to": "250 bar", "steps": 3},
+                     "recuperator.effectiveness": [0.9, 0.95]}
+    with pytest.raises(ScenarioError, match=r"^sweep has 6 points \(3 high_pressure x 2 recuperator"):
+        expand(data, max_points=5)
+    keys, points = expand(data, max_points=6)
+    assert keys == ["high_pressure", "recuperator.effectiveness"] and len(points) == 6
+    assert points[5][0] == {"high_pressure": 250e5, "recuperator.effectiveness": 0.95}
+    assert "sweep" not in points[5][1] and points[5][1]["recuperator"] == {"effectiveness": 0.95}
