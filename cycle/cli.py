@@ -89,6 +89,8 @@ def _parser():
                        help="how long to try to reach the scheduler at --dask ADDRESS (default 10)")
     sweep.add_argument("--overwrite", action="store_true",
                        help="replace an output file made by a different scenario")
+    sweep.add_argument("--max-points", type=int, default=None, metavar="N",
+                       help="refuse a sweep of more than N points before computing any (default 1000000)")
 
     compare = sub.add_parser(
         "compare", help="the same plant with several gases, ranked by figure of merit",
@@ -353,13 +355,15 @@ def _cmd_sweep(args):
         return _fail("--dask must be local or a scheduler address such as tcp://127.0.0.1:8786, got ''")
     if not (math.isfinite(args.dask_timeout) and args.dask_timeout > 0):
         return _fail(f"--dask-timeout must be a number of seconds above 0, got {args.dask_timeout:g}")
+    if args.max_points is not None and args.max_points < 1:
+        return _fail(f"--max-points must be 1 or more, got {args.max_points}")
     try:
         data = _read(args.scenario)
         from cycle.sweep import run_sweep
 
         try:
             outcome = run_sweep(data, args.out, workers=args.workers, dask=args.dask, overwrite=args.overwrite,
-                                dask_timeout=args.dask_timeout)
+                                dask_timeout=args.dask_timeout, max_points=args.max_points)
         except KeyboardInterrupt:
             print(f"lhsim: interrupted; the points finished so far are in {args.out}: run the same command "
                   f"again to compute the rest", file=sys.stderr)

@@ -514,3 +514,24 @@ def test_the_sidecar_still_records_the_sweep(tmp_path):
     run_sweep(SWEEP, out, workers=1)
     meta = json.loads((tmp_path / "r.csv.lhsim.json").read_text())
     assert meta["format"] == 2 and meta["points"] == 4 and meta["columns"][:3] == ["point", "high_pressure_bar", "gas"]
+
+
+def test_max_points_flag_refuses_a_sweep_too_large_before_computing(tmp_path, capsys):
+    from cycle import cli
+
+    path = tmp_path / "big.yaml"
+    path.write_text("gas: nitrogen\nlow_pressure: 1.05 bar\nhigh_pressure: 200 bar\n"
+                    "compressor: {isothermal_efficiency: 0.6}\nrecuperator: {effectiveness: 0.97}\n"
+                    "sweep:\n  high_pressure: {from: 50 bar, to: 300 bar, steps: 1000}\n"
+                    "  recuperator.effectiveness: {from: 0.9, to: 0.99, steps: 1000}\n"
+                    "  ambient_temperature: {from: 280 K, to: 310 K, steps: 1000}\n")
+    out = tmp_path / "r.csv"
+    assert cli.main(["sweep", str(path), "--out", str(out)]) == 2
+    assert "sweep has 1000000000 points" in capsys.readouterr().err
+    small = path.read_text().replace("steps: 1000}\n  ambient", "steps: 2}\n  ambient").replace(
+        "steps: 1000}\n  recuperator", "steps: 2}\n  recuperator").replace("310 K, steps: 1000", "310 K, steps: 2")
+    path.write_text(small)
+    assert cli.main(["sweep", str(path), "--out", str(out), "--max-points", "7", "--workers", "1"]) == 2
+    assert "more than the limit of 7" in capsys.readouterr().err and not out.exists()
+    assert cli.main(["sweep", str(path), "--out", str(out), "--max-points", "8", "--workers", "1"]) == 0
+    assert cli.main(["sweep", str(path), "--out", str(out), "--max-points", "0"]) == 2
