@@ -334,3 +334,15 @@ def test_the_point_limit_can_be_raised():
     assert keys == ["high_pressure", "recuperator.effectiveness"] and len(points) == 6
     assert points[5][0] == {"high_pressure": 250e5, "recuperator.effectiveness": 0.95}
     assert "sweep" not in points[5][1] and points[5][1]["recuperator"] == {"effectiveness": 0.95}
+
+
+def test_lhsim_sweep_max_points_raises_or_lowers_the_limit(capsys, tmp_path):
+    sweep = "sweep:\n  high_pressure: [150 bar, 250 bar]\n  recuperator.effectiveness: [0.9]\n"
+    path = write(tmp_path, SCENARIO + sweep)
+    out = tmp_path / "out.csv"
+    refused(capsys, "sweep", path, "--out", out, "--max-points", 1,
+            naming="sweep has 2 points (2 high_pressure x 1 recuperator.effectiveness), more than the limit of 1")
+    assert not out.exists()
+    refused(capsys, "sweep", path, "--out", out, "--max-points", 0, naming="--max-points must be 1 or more, got 0")
+    code, _, err = run(capsys, "sweep", path, "--out", out, "--max-points", 2, "--workers", 1)
+    assert code == 0 and f"2 points in {out}" in err
