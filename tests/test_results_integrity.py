@@ -411,6 +411,22 @@ def _started_sweep(tmp_path, **popen):
     return proc, out
 
 
+def _wait_gone(pids, seconds=20):
+    """Wait (bounded) until none of ``pids`` is alive."""
+    deadline = time.monotonic() + seconds
+    while time.monotonic() < deadline and any(_alive(pid) for pid in pids):
+        time.sleep(0.05)
+
+
+def _kill_all(pids):
+    """Leave no process of a test behind."""
+    for pid in pids:
+        try:
+            os.kill(pid, signal.SIGKILL)
+        except OSError:
+            pass
+
+
 @pytest.mark.skipif(not sys.platform.startswith("linux"), reason="reads /proc")
 def test_workers_exit_when_their_parent_is_killed(tmp_path):
     proc, _ = _started_sweep(tmp_path)
@@ -419,16 +435,10 @@ def test_workers_exit_when_their_parent_is_killed(tmp_path):
         assert proc.poll() is None and len(workers) == 2, "the sweep ended before it could be killed"
         os.kill(proc.pid, signal.SIGKILL)
         proc.wait(timeout=30)
-        deadline = time.monotonic() + 20
-        while time.monotonic() < deadline and any(_alive(w) for w in workers):
-            time.sleep(0.05)
+        _wait_gone(workers)
         assert not any(_alive(w) for w in workers), "a worker outlived its parent"
     finally:
-        for pid in [proc.pid] + workers:
-            try:
-                os.kill(pid, signal.SIGKILL)
-            except OSError:
-                pass
+        _kill_all([proc.pid] + workers)
         proc.stderr.close()
 
 
@@ -442,16 +452,10 @@ def test_ctrl_c_to_the_whole_process_group_stops_cleanly(tmp_path):
         _, err = proc.communicate(timeout=60)
         assert proc.returncode == 130, err
         assert "Traceback" not in err and "KeyboardInterrupt" not in err and "run the same command again" in err
-        deadline = time.monotonic() + 20
-        while time.monotonic() < deadline and any(_alive(w) for w in workers):
-            time.sleep(0.05)
+        _wait_gone(workers)
         assert not any(_alive(w) for w in workers)
     finally:
-        for pid in [proc.pid] + workers:
-            try:
-                os.kill(pid, signal.SIGKILL)
-            except OSError:
-                pass
+        _kill_all([proc.pid] + workers)
     kept = out.read_bytes().count(b"\n") - 1
     assert run_sweep(yaml.safe_load((tmp_path / "sweep.yaml").read_text()), out, workers=2)["computed"] == 150 - kept
 
