@@ -17,6 +17,35 @@ ISOTHERMAL_LABEL = "(isothermal model: cooled in the machine)"
 
 
 @dataclass(frozen=True)
+class Stage:
+    """One stage of a compressor train (or the one row of the isothermal model).
+
+    Attributes
+    ----------
+    number : int
+        Stage number within its compression (1 to N).
+    suction, discharge : properties.State
+        The gas entering and leaving the stage; for the isothermal model the discharge is the
+        model's outlet at the cooling temperature, not a temperature a machine would show.
+    work : float
+        Gas work of the stage [J/kg through it].
+    cooler_duty : float
+        Heat taken by the cooler after the stage [J/kg]: an intercooler, or 0 where the stage
+        feeds the aftercooler (its duty belongs to the aftercooler); for the isothermal model,
+        the heat removed inside the machine.
+    cooler_outlet : properties.State or None
+        The intercooler's outlet, None where the stage feeds the aftercooler.
+    """
+
+    number: int
+    suction: object
+    discharge: object
+    work: float
+    cooler_duty: float = 0.0
+    cooler_outlet: object = None
+
+
+@dataclass(frozen=True)
 class CompressionResult:
     """Outcome of the compressor train.
 
@@ -33,6 +62,10 @@ class CompressionResult:
         refrigerator's [J/kg compressed]; 0 with intercoolers at or above ambient.
     warnings : tuple of str
         Stages discharging above ``compressor.max_discharge_temperature``, in words.
+    stages : tuple of Stage
+        The stages in order (one row for the isothermal model).
+    model : str
+        ``"staged"`` or ``"isothermal"``.
     """
 
     states: list
@@ -40,6 +73,8 @@ class CompressionResult:
     heat_rejected: float
     chiller_work: float = 0.0
     warnings: tuple = ()
+    stages: tuple = ()
+    model: str = "staged"
 
     @property
     def outlet(self):
@@ -91,15 +126,24 @@ class Compressor:
             # reversible work is the exergy rise to that state, so below ambient it already
             # counts the refrigeration; there is no stage discharge to check.
             label = f"{section}outlet" if section else "compressor outlet"
-            return CompressionResult([(f"{label} {ISOTHERMAL_LABEL}", outlet)], work, heat)
+            stage = Stage(1, inlet, outlet, work, heat)
+            return CompressionResult([(f"{label} {ISOTHERMAL_LABEL}", outlet)], work, heat,
+                                     stages=(stage,), model="isothermal")
         from properties import PropertyRangeError
 
-        states, work, heat, chill = [], 0.0, 0.0, 0.0
+        states, rows, work, heat, chill = [], [], 0.0, 0.0, 0.0
         state = inlet
         n = spec.stages
-        pressures = processes.stage_pressures(inlet.p, p_out, n)
+        dp = spec.intercooler_pressure_drop
+        T_cool = self.intercooler_temperature
+        pressures = self.stage_pressures(inlet.p, p_out, cool_after)
         hot = []
         for k, p_stage in enumerate(pressures, start=1):
+            if not p_stage > state.p:
+                raise ScenarioError(
+                    f"{_stage_name(k, n, section)} would draw at {state.p / 1e5:.4g} bar and discharge at "
+                    f"{p_stage / 1e5:.4g} bar: compressor.intercooler_pressure_drop {dp / 1e5:g} bar takes more "
+                    f"than the stage gives; lower it or use fewer stages")
             try:
                 outlet, w = processes.compress_isentropic(fluid, state, p_stage, spec.isentropic_efficiency)
             except PropertyRangeError as err:
@@ -111,16 +155,35 @@ class Compressor:
             if outlet.T > spec.max_discharge_temperature:
                 hot.append((k, outlet.T))
             states.append((last if k == n else f"{section}stage {k} discharge", outlet))
-            state = outlet
+            suction = state
+            state, duty, cooled = outlet, 0.0, None
             if k < n or cool_after:
-                state, duty = processes.cool(fluid, outlet, self.cooling_temperature)
+                cooled, duty = processes.cool(fluid, outlet, T_cool, dp)
                 heat += duty
-                chill += processes.chiller_work(fluid, outlet, state, self.ambient_temperature)
-                states.append((f"{section}intercooler {k} outlet", state))
+                chill += processes.chiller_work(fluid, outlet, cooled, self.ambient_temperature)
+                states.append((f"{section}intercooler {k} outlet", cooled))
+                state = cooled
+            rows.append(Stage(k, suction, outlet, w, duty, cooled))
         warn = ()
         if hot:
             warn = (self._hot_warning(fluid, inlet, p_out, section, hot),)
-        return CompressionResult(states, work, heat, chill, warn)
+        return CompressionResult(states, work, heat, chill, warn, tuple(rows))
+
+    @property
+    def intercooler_temperature(self):
+        """Temperature the intercoolers bring the gas to [K]."""
+        T = self.spec.intercooler_temperature
+        return self.cooling_temperature if T is None else T
+
+    def stage_pressures(self, p_in, p_out, cool_after=False):
+        """Discharge pressure of each stage [Pa]: as given, or equal ratios; with ``cool_after``
+        the last stage discharges the intercooler's pressure drop above ``p_out``."""
+        spec = self.spec
+        dp = spec.intercooler_pressure_drop
+        top = p_out + dp if cool_after else p_out
+        if spec.stage_pressures is not None:
+            return list(spec.stage_pressures) + [top]
+        return processes.stage_pressures(p_in, top, spec.stages, dp)
 
     def _hot_warning(self, fluid, inlet, p_out, section, hot):
         """One sentence on the stages in ``hot`` [(stage, discharge temperature [K])]."""
@@ -149,10 +212,12 @@ class Compressor:
         limit = self.spec.max_discharge_temperature
         for n in range(self.spec.stages + 1, 13):
             if self._hottest_discharge(fluid, inlet, p_out, n) <= limit:
-                return (f"compress in more stages: compressor.stages {n} (intercooled to "
-                        f"{self.cooling_temperature:.5g} K) keeps every discharge below {limit:.2f} K")
+                spread = (" at equal pressure ratios (compressor.stage_pressures left out)"
+                          if self.spec.stage_pressures is not None else "")
+                return (f"compress in more stages: compressor.stages {n}{spread} (intercooled to "
+                        f"{self.intercooler_temperature:.5g} K) keeps every discharge below {limit:.2f} K")
         return (f"even compressor.stages 12 would not keep every discharge below {limit:.2f} K here: "
-                f"intercool colder (aftercooler.outlet_temperature) or use a better compressor "
+                f"intercool colder (compressor.intercooler_temperature) or use a better compressor "
                 f"(compressor.isentropic_efficiency)")
 
     def _hottest_discharge(self, fluid, inlet, p_out, n):
@@ -160,11 +225,14 @@ class Compressor:
         from properties import PropertyRangeError
 
         state, hottest = inlet, 0.0
+        dp = self.spec.intercooler_pressure_drop
         try:
-            for p_stage in processes.stage_pressures(inlet.p, p_out, n):
+            for p_stage in processes.stage_pressures(inlet.p, p_out, n, dp):
+                if not p_stage > state.p:
+                    return math.inf
                 outlet, _ = processes.compress_isentropic(fluid, state, p_stage, self.spec.isentropic_efficiency)
                 hottest = max(hottest, outlet.T)
-                state, _ = processes.cool(fluid, outlet, self.cooling_temperature)
+                state, _ = processes.cool(fluid, outlet, self.intercooler_temperature, dp)
         except PropertyRangeError:
             return math.inf
         return hottest

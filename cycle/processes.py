@@ -85,10 +85,32 @@ def compress_isentropic(fluid, inlet, p_out, efficiency):
     return outlet, h_out - inlet.h
 
 
-def stage_pressures(p_in, p_out, stages):
-    """Discharge pressure of each stage for equal pressure ratios [Pa] (common practice)."""
-    ratio = (p_out / p_in) ** (1.0 / stages)
-    pressures = [p_in * ratio ** (k + 1) for k in range(stages)]
+def stage_pressures(p_in, p_out, stages, pressure_drop=0.0):
+    """Discharge pressure of each stage for equal pressure ratios [Pa] (common practice).
+
+    Each intercooler between stages loses ``pressure_drop`` [Pa], so stage k + 1 draws at
+    stage k's discharge less the drop; the common ratio r solves
+    ``p_n = p_out`` with ``p_k = r (p_(k-1) - drop)`` and ``p_0 = p_in + drop``.
+    """
+    if pressure_drop == 0.0 or stages == 1:
+        ratio = (p_out / p_in) ** (1.0 / stages)
+        pressures = [p_in * ratio ** (k + 1) for k in range(stages)]
+    else:
+        from scipy.optimize import brentq
+
+        def chain(r):
+            p, out = p_in, []
+            for _ in range(stages):
+                p = r * p
+                out.append(p)
+                p -= pressure_drop
+            return out
+
+        hi = 2.0 * (p_out / p_in)
+        while chain(hi)[-1] < p_out:
+            hi *= 2.0
+        ratio = brentq(lambda r: chain(r)[-1] - p_out, 1.0, hi, xtol=1e-14, rtol=1e-14)
+        pressures = chain(ratio)
     pressures[-1] = p_out
     return pressures
 

@@ -28,12 +28,22 @@ class CompressorSpec:
 
     ``max_discharge_temperature`` [K] is the stage discharge temperature above which a run
     warns (staged model only: the isothermal model has no stage discharge).
+    ``stage_pressures`` [Pa] are the discharge pressures of stages 1 to N-1 (None: equal
+    pressure ratios); ``intercooler_temperature`` [K] (None: the aftercooler outlet
+    temperature) and ``intercooler_pressure_drop`` [Pa] apply to the coolers between stages.
+    Shaft power is gas power over ``mechanical_efficiency``, electric power is shaft power
+    over ``motor_efficiency``.
     """
 
     isothermal_efficiency: Optional[float] = None
     stages: int = 1
     isentropic_efficiency: Optional[float] = None
     max_discharge_temperature: float = DEFAULT_MAX_DISCHARGE_TEMPERATURE
+    stage_pressures: Optional[tuple] = None
+    intercooler_temperature: Optional[float] = None
+    intercooler_pressure_drop: float = 0.0
+    mechanical_efficiency: float = 1.0
+    motor_efficiency: float = 1.0
 
     @property
     def model(self):
@@ -69,11 +79,31 @@ class RecuperatorSpec:
 
 @dataclass(frozen=True)
 class ProductionSpec:
-    """Production target: liquid mass rate [kg/s], liquid volume rate [m3/s] or compressor flow [kg/s]."""
+    """Production target: a liquid rate, or a compressor flow.
+
+    Attributes
+    ----------
+    liquid_mass_rate : float or None
+        [kg/s]
+    liquid_volume_rate : float or None
+        Volume of saturated liquid [m3/s].
+    liquid_gas_volume_rate : float or None
+        The liquid as a volume of gas at ``volume_reference`` [m3/s there] (gas equivalent).
+    compressor_flow : float or None
+        Compressor mass flow [kg/s].
+    compressor_volume_flow : float or None
+        [m3/s]: at the compressor suction state (``volume_reference`` ``"suction"``) or of gas at
+        a reference condition.
+    volume_reference : str or None
+        ``"suction"`` or a key of :data:`cycle.units.REFERENCE_CONDITIONS`.
+    """
 
     liquid_mass_rate: Optional[float] = None
     liquid_volume_rate: Optional[float] = None
     compressor_flow: Optional[float] = None
+    liquid_gas_volume_rate: Optional[float] = None
+    compressor_volume_flow: Optional[float] = None
+    volume_reference: Optional[str] = None
 
 
 @dataclass(frozen=True)
@@ -159,6 +189,9 @@ class Scenario:
 
 # -- schema -------------------------------------------------------------------------------
 
+# Volume flows of gas at a reference condition (cycle.units.REFERENCE_CONDITIONS).
+GAS_VOLUME_FLOWS = ("normal_volume_flow", "standard_volume_flow", "standard_us_volume_flow")
+
 # key -> kind; a kind is a dimension name for quantities, or one of
 # "text", "gas", "integer", "number", a dict (a nested section), or a tuple of dimensions.
 SCHEMA = {
@@ -172,6 +205,11 @@ SCHEMA = {
         "stages": "integer",
         "isentropic_efficiency": "number",
         "max_discharge_temperature": "temperature",
+        "stage_pressures": "pressure_list",
+        "intercooler_temperature": "temperature",
+        "intercooler_pressure_drop": "pressure",
+        "mechanical_efficiency": "number",
+        "motor_efficiency": "number",
     },
     "aftercooler": {
         "outlet_temperature": "temperature",
@@ -201,8 +239,8 @@ SCHEMA = {
         "recirculated_fraction": "number",
     },
     "production": {
-        "liquid_rate": ("mass_flow", "volume_flow"),
-        "compressor_flow": "mass_flow",
+        "liquid_rate": ("mass_flow", "volume_flow") + GAS_VOLUME_FLOWS,
+        "compressor_flow": ("mass_flow", "volume_flow") + GAS_VOLUME_FLOWS,
     },
 }
 
@@ -253,6 +291,9 @@ def key_kind(key, where="sweep."):
             hint = f"; did you mean {close[0]}?" if close else ""
             raise ScenarioError(f"{where}{printable(key, 60)}: not a scenario key{hint}")
         node = node[part]
+    if node == "pressure_list":
+        raise ScenarioError(f"{where}{key}: a list of pressures cannot be {'swept' if where == 'sweep.' else 'varied'}; "
+                            f"sweep compressor.stages (equal pressure ratios), or write one scenario per list")
     if isinstance(node, dict):
         raise ScenarioError(f"{where}{key}: a section cannot be {'swept' if where == 'sweep.' else 'varied'}; "
                             f"use one of its keys, e.g. {key}.{next(iter(node))}")
@@ -274,12 +315,16 @@ def _check_keys(data, schema, prefix=""):
             _check_keys(value if value is not None else {}, schema[key], full + ".")
 
 
-def _quantity(data, key, dimension, full):
+def _quantity(data, key, dimension, full, gauge=None):
+    """``data[key]`` in SI; ``gauge=False`` refuses gauge pressure units (a pressure drop is a
+    difference: a gauge reading means nothing there); default: taken for pressures."""
     value = data[key]
     if value is None:
         raise ScenarioError(f"{full} is empty: expected a {dimension.replace('_', ' ')} such as {_EXAMPLES[dimension]}")
+    if gauge is None:
+        gauge = not key.endswith("pressure_drop")
     try:
-        return parse_quantity(value, dimension)
+        return parse_quantity(value, dimension, gauge=gauge)
     except UnitError as err:
         raise ScenarioError(f"{full}: {err}") from None
 
@@ -401,9 +446,13 @@ def parse_scenario(data):
     compressor = _parse_compressor(data.get("compressor"))
     aftercooler = _parse_aftercooler(data.get("aftercooler") or {}, T0, p_high, p_low)
     given_limit = (data.get("compressor") or {}).get("max_discharge_temperature")
-    if given_limit is not None and compressor.max_discharge_temperature <= aftercooler.outlet_temperature:
-        raise ScenarioError(f"compressor.max_discharge_temperature must be above aftercooler.outlet_temperature "
-                            f"({aftercooler.outlet_temperature:g} K), the temperature the gas enters each stage at, "
+    T_stage_in = aftercooler.outlet_temperature
+    which = "aftercooler.outlet_temperature"
+    if compressor.intercooler_temperature is not None and compressor.intercooler_temperature > T_stage_in:
+        T_stage_in, which = compressor.intercooler_temperature, "compressor.intercooler_temperature"
+    if given_limit is not None and compressor.max_discharge_temperature <= T_stage_in:
+        raise ScenarioError(f"compressor.max_discharge_temperature must be above {which} "
+                            f"({T_stage_in:g} K), the temperature the gas enters each stage at, "
                             f"got {given_limit!r}")
     p_hot_in = p_high - aftercooler.pressure_drop
     precooling = _parse_precooling(data.get("precooling"), aftercooler.outlet_temperature)
@@ -443,6 +492,9 @@ def parse_scenario(data):
         raise ScenarioError("dual_pressure.intermediate_pressure less recuperator.low_side_pressure_drop "
                             f"must stay above low_pressure ({_bar(p_low)})")
 
+    suction = p_low - (recuperator.low_side_pressure_drop if precooling is None
+                       else warm.low_side_pressure_drop + cold.low_side_pressure_drop)
+    _check_stage_pressures(compressor, suction, p_high, "dual-pressure" if dual is not None else "other")
     production = _parse_production(data.get("production"))
     heat_leak = 0.0
     if data.get("heat_leak") is not None:
@@ -533,13 +585,22 @@ def _parse_compressor(section):
         other = "isentropic_efficiency" if "isentropic_efficiency" in given else "stages"
         raise ScenarioError(f"give one of compressor.isothermal_efficiency or compressor.stages with "
                             f"compressor.isentropic_efficiency, not compressor.isothermal_efficiency and compressor.{other}")
-    limit = DEFAULT_MAX_DISCHARGE_TEMPERATURE
+    values = {}
     if section.get("max_discharge_temperature") is not None:
-        limit = _temperature(section, "max_discharge_temperature", "compressor.max_discharge_temperature")
+        values["max_discharge_temperature"] = _temperature(section, "max_discharge_temperature",
+                                                           "compressor.max_discharge_temperature")
+    for key in ("mechanical_efficiency", "motor_efficiency"):
+        if section.get(key) is not None:
+            eta = _number(section, key, f"compressor.{key}")
+            values[key] = _between(eta, f"compressor.{key}", 0, 1, given=section[key])
     if section.get("isothermal_efficiency") is not None:
+        for key in ("stage_pressures", "intercooler_temperature", "intercooler_pressure_drop"):
+            if key in given:
+                raise ScenarioError(f"compressor.{key} goes with compressor.stages and compressor.isentropic_efficiency, "
+                                    f"not with compressor.isothermal_efficiency (that model has no stages)")
         eta = _number(section, "isothermal_efficiency", "compressor.isothermal_efficiency")
         _between(eta, "compressor.isothermal_efficiency", 0, 1, given=section["isothermal_efficiency"])
-        return CompressorSpec(isothermal_efficiency=eta, max_discharge_temperature=limit)
+        return CompressorSpec(isothermal_efficiency=eta, **values)
     if section.get("isentropic_efficiency") is None:
         raise ScenarioError("missing compressor.isentropic_efficiency (with compressor.stages) or "
                             "compressor.isothermal_efficiency: expected a number between 0 and 1")
@@ -548,7 +609,67 @@ def _parse_compressor(section):
     stages = 1
     if section.get("stages") is not None:
         stages = _integer(section, "stages", "compressor.stages", 1, 12)
-    return CompressorSpec(stages=stages, isentropic_efficiency=eta, max_discharge_temperature=limit)
+    if section.get("intercooler_temperature") is not None:
+        values["intercooler_temperature"] = _temperature(section, "intercooler_temperature",
+                                                         "compressor.intercooler_temperature")
+    if section.get("intercooler_pressure_drop") is not None:
+        dp = _quantity(section, "intercooler_pressure_drop", "pressure", "compressor.intercooler_pressure_drop",
+                       gauge=False)
+        if dp < 0:
+            raise ScenarioError(f"compressor.intercooler_pressure_drop must be 0 or more, got "
+                                f"{section['intercooler_pressure_drop']!r}")
+        values["intercooler_pressure_drop"] = dp
+    if section.get("stage_pressures") is not None:
+        values["stage_pressures"] = _stage_pressure_list(section["stage_pressures"], stages)
+    return CompressorSpec(stages=stages, isentropic_efficiency=eta, **values)
+
+
+def _stage_pressure_list(given, stages):
+    """``compressor.stage_pressures`` [Pa]: the discharge pressures of stages 1 to N-1, rising."""
+    key = "compressor.stage_pressures"
+    if stages == 1:
+        raise ScenarioError(f"{key} needs compressor.stages of 2 or more (one stage discharges at high_pressure), "
+                            f"got compressor.stages 1")
+    if not isinstance(given, list) or len(given) != stages - 1:
+        raise ScenarioError(f"{key} must be a list of {stages - 1} pressure{'s' if stages > 2 else ''} (the discharge "
+                            f"pressures of stages 1 to {stages - 1} of {stages}; the last discharges at high_pressure), "
+                            f"got {shown(given)}")
+    out = []
+    for k, value in enumerate(given, start=1):
+        full = f"{key}[{k}]"
+        if value is None:
+            raise ScenarioError(f"{full} is empty: expected the discharge pressure of stage {k}, such as '10 bar'")
+        try:
+            p = parse_quantity(value, "pressure")
+        except UnitError as err:
+            raise ScenarioError(f"{full}: {err}") from None
+        if out and p <= out[-1]:
+            raise ScenarioError(f"{key} must rise from stage to stage, got {shown(given)} (stage {k} "
+                                f"discharges at {_bar(p)}, stage {k - 1} at {_bar(out[-1])})")
+        out.append(p)
+    return tuple(out)
+
+
+def _check_stage_pressures(compressor, p_suction, p_high, layout):
+    """The stage pressures fit between the compressor suction and high_pressure."""
+    given = compressor.stage_pressures
+    if given is None:
+        return
+    key = "compressor.stage_pressures"
+    if layout == "dual-pressure":
+        raise ScenarioError(f"{key} is not taken in the dual-pressure layout (its two sections share "
+                            f"compressor.stages, each at equal pressure ratios); leave it out")
+    dp = compressor.intercooler_pressure_drop
+    suction = p_suction
+    for k, p in enumerate(list(given) + [p_high], start=1):
+        if p <= suction:
+            where = "the compressor suction" if k == 1 else f"stage {k}'s suction (after intercooler {k - 1})"
+            raise ScenarioError(f"{key}: stage {k} must discharge above {where}, {_bar(suction)}, got "
+                                f"{_bar(p)}{' (high_pressure)' if k > len(given) else ''}")
+        suction = p - dp
+        if k <= len(given) and suction <= 0:
+            raise ScenarioError(f"compressor.intercooler_pressure_drop {_bar(dp)} is more than stage {k}'s "
+                                f"discharge pressure {_bar(p)}")
 
 
 def _parse_aftercooler(section, T0, p_high, p_low):
@@ -599,26 +720,38 @@ def _parse_production(section):
     if section is None:
         return None
     key = _exactly_one(section, ["liquid_rate", "compressor_flow"], "production")
-    if key == "compressor_flow":
-        flow = _quantity(section, key, "mass_flow", "production.compressor_flow")
-        if flow <= 0:
-            raise ScenarioError(f"production.compressor_flow must be above 0, got {section[key]!r}")
-        return ProductionSpec(compressor_flow=flow)
+    full = f"production.{key}"
     value = section[key]
-    try:
-        rate = parse_quantity(value, "mass_flow")
-        spec = ProductionSpec(liquid_mass_rate=rate)
-    except UnitError:
+    if value is None:
+        raise ScenarioError(f"{full} is empty")
+    found = None
+    for dimension in SCHEMA["production"][key]:
         try:
-            rate = parse_quantity(value, "volume_flow")
+            found = dimension, parse_quantity(value, dimension)
+            break
         except UnitError as err:
-            hint = str(err) if "m^3" in str(err) else (f"expected a mass flow such as '8 kg/h' or a volume flow "
-                                                      f"of liquid such as '10 L/h', got {shown(value)}")
-            raise ScenarioError(f"production.liquid_rate: {hint}") from None
-        spec = ProductionSpec(liquid_volume_rate=rate)
+            if "write powers with ^" in str(err):
+                raise ScenarioError(f"{full}: {err}") from None  # a unit written m3: the hint says ^
+            continue
+    if found is None:
+        what = ("a mass flow such as '8 kg/h', a volume of liquid such as '10 L/h', or the gas equivalent "
+                "such as '6 Nm^3/h'" if key == "liquid_rate" else
+                "a mass flow such as '60 kg/h', a volume flow at the compressor suction such as '50 m^3/h' or "
+                "'800 L/min', or a volume of gas at reference conditions such as '40 Nm^3/h', '40 Sm^3/h' or '25 scfm'")
+        raise ScenarioError(f"{full}: expected {what}, got {shown(value)}")
+    dimension, rate = found
     if rate <= 0:
-        raise ScenarioError(f"production.liquid_rate must be above 0, got {value!r}")
-    return spec
+        raise ScenarioError(f"{full} must be above 0, got {value!r}")
+    if key == "compressor_flow":
+        if dimension == "mass_flow":
+            return ProductionSpec(compressor_flow=rate)
+        return ProductionSpec(compressor_volume_flow=rate,
+                              volume_reference="suction" if dimension == "volume_flow" else dimension)
+    if dimension == "mass_flow":
+        return ProductionSpec(liquid_mass_rate=rate)
+    if dimension == "volume_flow":
+        return ProductionSpec(liquid_volume_rate=rate)
+    return ProductionSpec(liquid_gas_volume_rate=rate, volume_reference=dimension)
 
 
 # Limits on a scenario file, checked before any value is built (docs/scenario-format.md,

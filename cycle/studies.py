@@ -52,8 +52,10 @@ def _scenario_value(value, kind, dimension):
     """An SI number as a scenario value: bare, unless the key takes several kinds of quantity
     (a bare number is then the first kind), when it carries its SI unit."""
     if isinstance(kind, tuple) and dimension != kind[0]:
-        from cycle.units import DIMENSIONS
+        from cycle.units import DIMENSIONS, REFERENCE_CONDITIONS, gas_volume_text
 
+        if dimension in REFERENCE_CONDITIONS:
+            return gas_volume_text(value, dimension)
         return f"{value!r} {DIMENSIONS[dimension][1]}"
     return value
 

@@ -35,7 +35,28 @@ DIMENSIONS = {
     "thermal_conductance": ("[power] / [temperature]", "watt / kelvin"),
     "specific_energy": ("[length] ** 2 / [time] ** 2", "joule / kilogram"),
     "dimensionless": ("", ""),
+    "time_unit": ("[time]", "second"),
+    # Volume flows of gas at a reference condition (REFERENCE_CONDITIONS), in m^3/s there.
+    "normal_volume_flow": ("[length] ** 3 / [time]", "Nm^3/s"),
+    "standard_volume_flow": ("[length] ** 3 / [time]", "Sm^3/s"),
+    "standard_us_volume_flow": ("[length] ** 3 / [time]", "scfm"),
 }
+
+# Reference conditions of gas volume flows: dimension -> (temperature [K], pressure [Pa], words).
+REFERENCE_CONDITIONS = {
+    "normal_volume_flow": (273.15, 101325.0, "0 degC and 1.01325 bar (normal conditions, DIN 1343)"),
+    "standard_volume_flow": (288.15, 101325.0, "15 degC and 1.01325 bar (standard conditions, ISO 13443)"),
+    # 60 degF = 519.67 R / 1.8; 14.696 psia with the psi of 6894.757293168 Pa.
+    "standard_us_volume_flow": (519.67 / 1.8, 14.696 * 6894.757293168, "60 degF and 14.696 psia"),
+}
+# The gas volume flow spellings: Nm^3/h, Nm3/h, Nl/min, NL/min; Sm^3/h; scfm, scfh, scfd.
+_GAS_VOLUME = re.compile(r"^(?P<ref>[NS])\s*(?P<unit>(?:m(?:\^3|\*\*3|3|\u00b3)|[lL])\s*/\s*[A-Za-z]+)$")
+_SCF = re.compile(r"^(?i:scf(?P<time>[mhd]))$")
+_SCF_TIME = {"m": "min", "h": "hour", "d": "day"}
+# One standard cubic foot [m^3 at the US reference]: (0.3048 m)^3.
+CUBIC_FOOT = 0.3048 ** 3
+# Atmospheric pressure added to a gauge reading [Pa]: the standard atmosphere.
+STANDARD_ATMOSPHERE = 101325.0
 
 # Units a user may write in the style of the trade; pint would misread a few of them.
 _SPELLINGS = {
@@ -113,7 +134,7 @@ def registry():
     return ureg
 
 
-def parse_quantity(value, dimension):
+def parse_quantity(value, dimension, gauge=True):
     """Convert ``value`` to a float in the SI unit of ``dimension``.
 
     Parameters
@@ -121,7 +142,12 @@ def parse_quantity(value, dimension):
     value : str or float
         A number (taken as SI) or a string of a number and a unit (``"200 bar"``).
     dimension : str
-        A key of :data:`DIMENSIONS`.
+        A key of :data:`DIMENSIONS`.  The gas volume flows (``normal_volume_flow``: ``Nm^3/h``,
+        ``Nl/min``; ``standard_volume_flow``: ``Sm^3/h``; ``standard_us_volume_flow``: ``scfm``,
+        ``scfh``) give m^3/s at their reference condition (:data:`REFERENCE_CONDITIONS`).
+    gauge : bool
+        For ``pressure``: take a gauge reading (``barg``, ``psig``) and add the standard
+        atmosphere, 1.01325 bar.  False for a pressure difference, where a gauge unit is refused.
 
     Returns
     -------
@@ -156,11 +182,22 @@ def parse_quantity(value, dimension):
         raise UnitError(f"expected a finite number, got {shown(value)}")
     unit = _SPELLINGS.get(unit, unit)
     if unit.lower() in _GAUGE:
-        raise UnitError(f"gauge pressures are not accepted (give absolute pressure), got {shown(value)}; add the "
-                        f"atmospheric pressure and write {_GAUGE[unit.lower()]}")
+        absolute = _GAUGE[unit.lower()]
+        if dimension != "pressure":
+            raise UnitError(f"expected a {dimension.replace('_', ' ')} (for example in {_EXAMPLE[dimension]}), got "
+                            f"{shown(value)} (a gauge pressure)")
+        if not gauge:
+            raise UnitError(f"a pressure drop is a difference and takes no gauge unit: write "
+                            f"'{match.group(1)} {_SPELLINGS.get(absolute, absolute)}', got {shown(value)}")
+        return parse_quantity(f"{match.group(1)} {absolute}", "pressure") + STANDARD_ATMOSPHERE
+    if dimension in REFERENCE_CONDITIONS:
+        return _gas_volume_flow(value, number, unit, dimension)
     dim, si = DIMENSIONS[dimension]
     if not unit:
         return number
+    if dimension == "volume_flow" and (_GAS_VOLUME.match(unit) or _SCF.match(unit)):
+        raise UnitError(f"expected an actual volume flow (for example in L/h or m^3/h), got {shown(value)}: a "
+                        f"volume of gas at reference conditions is not taken here")
     _check_unit(unit, value)
     import pint
 
@@ -194,6 +231,31 @@ def parse_quantity(value, dimension):
     if not math.isfinite(out):
         raise UnitError(f"expected a finite number, got {shown(value)}")
     return out
+
+
+def _gas_volume_flow(value, number, unit, dimension):
+    """A gas volume flow at the reference condition of ``dimension`` [m^3/s there]."""
+    ref = {"normal_volume_flow": "N", "standard_volume_flow": "S"}.get(dimension)
+    example = {"N": "'10 Nm^3/h'", "S": "'10 Sm^3/h'", None: "'5 scfm'"}[ref]
+    if not unit:
+        return number
+    gas = _GAS_VOLUME.match(unit)
+    scf = _SCF.match(unit)
+    if ref is not None and gas and gas.group("ref") == ref:
+        # Nm3/h and Nm\u00b3/h are how plants write it: the power is read as m^3 here.
+        volume = re.sub(r"^m(?:3|\u00b3)", "m^3", gas.group("unit"))
+        return parse_quantity(f"{number!r} {volume}", "volume_flow")
+    if ref is None and scf:
+        return number * CUBIC_FOOT / parse_quantity(f"1 {_SCF_TIME[scf.group('time').lower()]}", "time_unit")
+    raise UnitError(f"expected a {dimension.replace('_', ' ')} such as {example}, got {shown(value)}")
+
+
+def gas_volume_text(value, dimension):
+    """A gas volume flow [m^3/s at the reference of ``dimension``] as text :func:`parse_quantity`
+    reads back to ``value``."""
+    if dimension == "standard_us_volume_flow":
+        return f"{value * 60.0 / CUBIC_FOOT!r} scfm"
+    return f"{value!r} {DIMENSIONS[dimension][1]}"
 
 
 def _check_unit(unit, value):
@@ -290,4 +352,7 @@ _EXAMPLE = {
     "temperature_difference": "K",
     "thermal_conductance": "W/K",
     "specific_energy": "kJ/kg",
+    "normal_volume_flow": "Nm^3/h",
+    "standard_volume_flow": "Sm^3/h",
+    "standard_us_volume_flow": "scfm",
 }
