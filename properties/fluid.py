@@ -148,7 +148,16 @@ class Fluid:
         try:
             self._state.update(pair, float(a), float(b))
         except ValueError as err:
+            self._reset_state()
             self._fail(asked, f"CoolProp could not solve it ({str(err).strip()})")
+
+    def _reset_state(self):
+        """A fresh AbstractState after a failed update: some failures leave the old one unusable
+        (seen with air: a (p, s) flash just above its critical pressure makes every later update,
+        a plain (p, T) included, fail with "p is not a valid number")."""
+        self._state = CoolProp.AbstractState("HEOS", self.name)
+        if self._marcher is not None:
+            self._marcher.state = self._state
 
     def _check_result(self, asked):
         """A (p, h) or (p, s) flash may land outside the equation of state's temperatures."""

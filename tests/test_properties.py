@@ -510,3 +510,18 @@ def test_flashes_at_exactly_the_critical_pressure_are_stepped_one_ppm_off(name):
     assert at.T == pytest.approx(above.T, rel=1e-5)
     by_s = fl.state_ps(pc, above.s)
     assert by_s.T == pytest.approx(above.T, rel=1e-5) and by_s.p == pc
+
+
+def test_a_failed_flash_leaves_the_fluid_usable():
+    # Seen with CoolProp 8: this (p, s) flash of air just above its critical pressure fails and,
+    # left alone, poisons the AbstractState so that a plain (p, T) update fails after it.
+    from properties import PropertyRangeError, get_fluid
+
+    air = get_fluid("air")
+    before = air.state_tp(300.0, 200e5).h
+    try:
+        air.state_ps(3788681.5552971913, 1389.6257629845607)
+    except PropertyRangeError:
+        pass
+    assert air.state_tp(300.0, 200e5).h == before
+    assert air.temperatures_ph([200e5], [before])[0] == pytest.approx(300.0, abs=1e-6)
