@@ -36,7 +36,8 @@ def _parser():
         "run", help="solve one scenario file and print its design point",
         description="Solve a scenario (YAML) and print the liquid yield, work, figure of merit, "
                     "sizing and the state table of every stream.",
-        epilog=SAFETY_POINTER + "\n\nexit status: 0 solved; 2 invalid scenario; 3 the cycle makes no liquid.",
+        epilog=SAFETY_POINTER + "\n\nexit status: 0 solved; 2 invalid scenario; 3 the cycle makes no liquid (or the "
+               "precooler's cooler cannot carry its load at any temperature of its curve).",
         formatter_class=_Formatter)
     run.add_argument("scenario", metavar="SCENARIO.yaml", help="scenario file")
     run.add_argument("--json", action="store_true",

@@ -392,6 +392,8 @@ class PrecoolingSupply:
         Work charged per kg of coolant [J/kg].
     lower_bound : bool
         True where the coolant is charged at its ideal work of liquefaction.
+    coolant_density : float or None
+        Density of the coolant as it is fed, saturated liquid at the bath pressure [kg/m3].
     """
 
     work: float
@@ -399,6 +401,7 @@ class PrecoolingSupply:
     coolant: float = None
     coolant_work: float = None
     lower_bound: bool = False
+    coolant_density: float = None
 
 
 class Precooler:
@@ -440,9 +443,12 @@ class Precooler:
         liquid, vapour = self.coolant_states()
         return processes.refrigeration_exergy(vapour.h - liquid.h, liquid.T, self.ambient_temperature)
 
-    def supply(self, duty):
-        """Cost of ``duty`` [J/kg compressed] of precooling (:class:`PrecoolingSupply`)."""
+    def supply(self, duty, flow=None):
+        """Cost of ``duty`` [J/kg compressed] of precooling (:class:`PrecoolingSupply`);
+        ``flow`` [kg/s] is the compressor flow, needed for a cooler given by its input power."""
         spec, T0 = self.spec, self.ambient_temperature
+        if spec.cooler_capacity is not None:
+            return PrecoolingSupply(spec.cooler_input_power / flow, spec.temperature)
         if spec.coolant is not None:
             from properties import get_fluid
 
@@ -452,7 +458,7 @@ class Precooler:
             lower = per_kg is None
             if lower:
                 per_kg = processes.ideal_work_of_liquefaction(get_fluid(spec.coolant), T0, spec.coolant_pressure)
-            return PrecoolingSupply(boiled * per_kg, liquid.T, boiled, per_kg, lower)
+            return PrecoolingSupply(boiled * per_kg, liquid.T, boiled, per_kg, lower, liquid.density)
         cop = spec.refrigerator_cop
         if cop is None:
             cop = spec.refrigerator_carnot_fraction * processes.carnot_cop(spec.temperature, T0)

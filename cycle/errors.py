@@ -9,6 +9,10 @@ class NoLiquefactionError(RuntimeError):
     """The cycle as specified makes no liquid; the message says why."""
 
 
+class CoolerTooSmallError(NoLiquefactionError):
+    """A precooler whose cooler cannot carry the load at any temperature of its capacity curve."""
+
+
 class UnreachableSizingError(NoLiquefactionError):
     """A recuperator sizing that no exchanger between these streams can meet."""
 

@@ -42,6 +42,10 @@ UA_RTOL = 1e-6
 SIZING_TOLERANCE = {"effectiveness": 1e-7, "min_approach": 1e-6, "ua": UA_RTOL}
 # Relative size [-] of the work below which a negative exergy loss is round-off (and shown as 0).
 LOSS_ROUND_OFF = 1e-8
+# A compressor volume flow at suction: passes of the whole solve, and the change of the mass
+# flow [relative] at which they stop (the density is then met far inside the duty tolerance).
+SUCTION_ITERATIONS = 12
+SUCTION_RTOL = 1e-11
 # Streams closer than this [K] touch: below the resolution of the property data, the exchanger
 # is a perfect one and its UA is reported as unbounded (null).
 TOUCH_APPROACH = 1e-6
@@ -497,6 +501,11 @@ class Liquefier:
         self.aftercooler = Aftercooler(sc.aftercooler.outlet_temperature, sc.aftercooler.pressure_drop)
         self.separator = Separator(sc.low_pressure)
         self.valve = ThrottleValve(sc.low_pressure)
+        self._reference_densities = {}
+        self._volume_mass_flow = None
+
+    # Flow through the compressor suction per kg of compressor flow.
+    suction_flow = 1.0
 
     def solve(self, xtol=None, maxiter=200):
         """Converge the recycle and return a :class:`~cycle.results.CycleResult`.
@@ -519,7 +528,7 @@ class Liquefier:
         from properties import PropertyRangeError
 
         try:
-            result = self._solve(xtol, maxiter)
+            result = self._solve_production(xtol, maxiter)
         except PropertyRangeError as err:
             raise ScenarioError(f"the scenario asks for a state outside the property range: {err}") from None
         except OverflowError as err:
@@ -538,6 +547,7 @@ class Liquefier:
         if prod is not None:
             given = "; ".join(f"production.{k} {v:g} (SI)" for k, v in (
                 ("liquid_rate", prod.liquid_mass_rate), ("liquid_rate", prod.liquid_volume_rate),
+                ("liquid_rate", prod.liquid_gas_volume_rate), ("compressor_flow", prod.compressor_volume_flow),
                 ("compressor_flow", prod.compressor_flow)) if v is not None)
         if self.scenario.heat_leak > 0:
             given += f"{'; ' if given else ''}heat_leak {self.scenario.heat_leak:g} W"
@@ -607,9 +617,69 @@ class Liquefier:
             return None, None
         if prod.compressor_flow is not None:
             return prod.compressor_flow, None
+        if prod.compressor_volume_flow is not None:
+            return self._volume_mass_flow, None
         if prod.liquid_mass_rate is not None:
             return None, prod.liquid_mass_rate
+        if prod.liquid_gas_volume_rate is not None:
+            rho = self.reference_density(prod.volume_reference, "production.liquid_rate")
+            return None, prod.liquid_gas_volume_rate * rho
         return None, prod.liquid_volume_rate * liquid.density
+
+    def reference_density(self, reference, key=None):
+        """Density of the gas at a reference condition of :data:`cycle.units.REFERENCE_CONDITIONS`
+        [kg/m3] (real gas, from the equation of state).
+
+        Where the fluid is not a gas there (it boils above the reference temperature at the
+        reference pressure), None; with ``key`` that is an error naming the key.
+        """
+        from cycle.units import REFERENCE_CONDITIONS
+
+        found = self._reference_densities.get(reference)
+        if found is None:
+            T, p, words = REFERENCE_CONDITIONS[reference]
+            fl = self.fluid
+            boils = fl.saturation_temperature(p) if fl.p_triple < p < fl.p_critical else None
+            if boils is not None and boils >= T:
+                found = (None, f"{fl.name} is not a gas at {words}: it boils at {boils:.2f} K there")
+            else:
+                found = (fl.state_tp(T, p).density, "")
+            self._reference_densities[reference] = found
+        rho, why = found
+        if rho is None and key is not None:
+            raise ScenarioError(f"{key}: a volume of gas at reference conditions needs a gas there; {why}; give "
+                                f"a mass flow")
+        return rho
+
+    def _solve_production(self, xtol, maxiter):
+        """Solve, with a compressor volume flow turned into its mass flow first.
+
+        At reference conditions the density is fixed; at the compressor suction it depends on
+        the suction temperature, which the solve decides: the mass flow is found by successive
+        substitution, m = V rho_suction / (suction flow per kg compressed), until it changes by
+        less than :data:`SUCTION_RTOL` (the suction density barely depends on the flow).
+        """
+        prod = self.scenario.production
+        if prod is None or prod.compressor_volume_flow is None:
+            return self._solve(xtol, maxiter)
+        V = prod.compressor_volume_flow
+        if prod.volume_reference != "suction":
+            self._volume_mass_flow = V * self.reference_density(prod.volume_reference, "production.compressor_flow")
+            return self._solve(xtol, maxiter)
+        m = V * self.fluid.state_tp(self.T0, self.suction_pressure).density / self.suction_flow
+        for _ in range(SUCTION_ITERATIONS):
+            self._volume_mass_flow = m
+            result = self._solve(xtol, maxiter)
+            suction, flow = result.suction
+            m_next = V * suction.density / flow
+            if abs(m_next - m) <= SUCTION_RTOL * m:
+                return result
+            m = m_next
+        missed = (m * result.suction[1] / result.suction[0].density - V) / V
+        result.warnings.append(
+            f"production.compressor_flow: the suction volume flow reached is off by {missed:+.2e} of the "
+            f"{V * 3600:g} m^3/h asked for after {SUCTION_ITERATIONS} passes (the mass flow did not settle)")
+        return result
 
     def _yield_function(self, liquid, vapour, feed_flow=1.0):
         """Yield as a function of the enthalpy entering the low-pressure valve.
@@ -710,10 +780,25 @@ class Liquefier:
         return T0 * s_gen
 
     def _finish(self, *, y, m, streams, compressions, after_duty, makeup, liquid, throttle_outlet,
-                recuperators, reports, losses, precooling_work=0.0, precooler_duty=0.0, coolant=None,
-                warn=(), receiver_vapour_fraction=None):
+                recuperators, reports, losses, valves, precooling_work=0.0, precooler_duty=0.0, coolant=None,
+                warn=(), receiver_vapour_fraction=None, coolant_density=None, cooler_capacity=None):
+        """Assemble the :class:`~cycle.results.CycleResult`.
+
+        ``valves`` are ``(inlet state, outlet pressure [Pa], flow per kg compressed)`` in flow
+        order; each is sized for its critical mass flux (:func:`cycle.orifice.size_valve`).
+        """
+        from cycle.orifice import size_valve
+
         sc = self.scenario
         warn = list(warn) + [text for c, _ in compressions for text in c.warnings]
+        names = ("",) if len(compressions) == 1 else ("low-pressure", "high-pressure")
+        # The drive: shaft power is gas power over the mechanical efficiency, electric power is
+        # shaft power over the motor efficiency; what they lose leaves as heat at ambient.
+        gas_work = sum(flow * c.work for c, flow in compressions)
+        eta_drive = sc.compressor.mechanical_efficiency * sc.compressor.motor_efficiency
+        drive = gas_work * (1.0 / eta_drive - 1.0)
+        if drive > 0:
+            losses = dict(losses, compressor_drive=drive)
         # Cooling below ambient needs a chiller, charged at an ideal (Carnot) one's work (a lower
         # bound; 0 where every cooler is at or above ambient): the intercoolers' from each
         # compression, the aftercooler's after the last compression, which feeds it.  The
@@ -723,8 +808,8 @@ class Liquefier:
         feed, feed_flow = compressions[-1]
         chill = (sum(flow * c.chiller_work for c, flow in compressions)
                  + feed_flow * self.aftercooler.chiller_work(self.fluid, feed.outlet, self.T0))
-        comp_work = sum(flow * c.work for c, flow in compressions) + chill
-        comp_heat = sum(flow * c.heat_rejected for c, flow in compressions) + chill
+        comp_work = gas_work + drive + chill
+        comp_heat = sum(flow * c.heat_rejected for c, flow in compressions) + chill + drive
         if chill:
             losses = dict(losses, compressor=losses["compressor"] + chill)
         T_after = sc.aftercooler.outlet_temperature
@@ -756,6 +841,10 @@ class Liquefier:
             warnings.warn(text, RecycleNotConvergedWarning, stacklevel=4)
             warn.append(text)
         states = [StreamState(k, name, st, flow) for k, (name, st, flow) in enumerate(streams, start=1)]
+        cd = sc.valve.discharge_coefficient
+        sized = tuple(size_valve(self.fluid, inlet, p_out, None if m is None else m * flow,
+                                 **({} if cd is None else {"discharge_coefficient": cd}))
+                      for inlet, p_out, flow in valves)
         return CycleResult(
             scenario=sc, liquid_yield=y, work_per_kg_compressed=comp_work,
             ideal_work_per_kg_liquid=ideal_work_of_liquefaction(self.fluid, self.T0, sc.low_pressure),
@@ -766,7 +855,12 @@ class Liquefier:
             exergy_losses=_without_round_off(losses, comp_work + precooling_work),
             precooling_work_per_kg_compressed=precooling_work,
             precooler_duty=precooler_duty, coolant_per_kg_compressed=coolant, warnings=warn,
-            receiver_vapour_fraction=receiver_vapour_fraction)
+            receiver_vapour_fraction=receiver_vapour_fraction,
+            compressions=tuple((name, c, flow) for name, (c, flow) in zip(names, compressions)),
+            gas_work_per_kg_compressed=gas_work, drive_loss_per_kg_compressed=drive,
+            normal_density=self.reference_density("normal_volume_flow"), valves=sized,
+            precooler_load=m * precooler_duty if m is not None and sc.layout == "precooled" else None,
+            coolant_liquid_density=coolant_density, cooler_capacity=cooler_capacity)
 
     def _warm_end(self, ret, y):
         """Make-up mixing, compression and aftercooling of the return gas ``ret`` (flow 1 - y).
@@ -839,7 +933,7 @@ class SimpleLindeHampson(Liquefier):
             y=y, m=m, streams=streams, compressions=[(comp, 1.0)], after_duty=after_duty, makeup=makeup,
             liquid=liquid, throttle_outlet=valve_out,
             recuperators={"recuperator": self._recuperator_result(duty, prof, eps, eps_crit)},
-            reports={"recuperator": report}, losses=losses)
+            reports={"recuperator": report}, losses=losses, valves=[(hp_out, sc.low_pressure, 1.0)])
 
 
 def build_flowsheet(scenario):

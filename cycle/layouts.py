@@ -1,9 +1,18 @@
 """The precooled and dual-pressure Linde-Hampson flowsheets (see :mod:`cycle.flowsheet`)."""
 
+from scipy.optimize import brentq
+
 from cycle.equipment import MakeupMixer, Precooler, Recuperator, ThrottleValve
 from cycle.errors import NoLiquefactionError, ScenarioError, UnreachableSizingError
 from cycle.flowsheet import Liquefier, Section, solve_section
 from cycle.processes import carnot_cop, refrigeration_exergy
+
+
+# The cooler balance: temperatures scanned over the capacity curve, Brent's tolerance on the
+# precooling temperature [K], and the relative miss of load against capacity that is warned.
+COOLER_SCAN = 9
+COOLER_XTOL = 1e-7
+COOLER_BALANCE_RTOL = 1e-6
 
 
 class PrecooledLindeHampson(Liquefier):
@@ -61,6 +70,96 @@ class PrecooledLindeHampson(Liquefier):
                     f"precooling.temperature and ambient_temperature, got {spec.refrigerator_cop:g}")
 
     def _solve(self, xtol, maxiter):
+        spec = self.scenario.precooling
+        if spec.cooler_capacity is not None and spec.temperature is None:
+            return self._solve_cooler(xtol, maxiter)
+        return self._solve_at_temperature(xtol, maxiter)
+
+    def _solve_cooler(self, xtol, maxiter):
+        """The precooling temperature at which the load equals the cooler's capacity.
+
+        The capacity curve is interpolated monotonically (piecewise cubic Hermite, PCHIP, which
+        keeps the curve's rises and falls).  The load (compressor flow times precooler duty per
+        kg) is scanned over the curve's temperatures where the cycle can run; the coldest
+        crossing of load and capacity is refined by Brent's method on the temperature, each trial
+        a whole solve of the cycle at that precooling temperature.
+        """
+        from dataclasses import replace
+
+        from scipy.interpolate import PchipInterpolator
+
+        from cycle.errors import CoolerTooSmallError
+
+        fl, sc, spec, T0 = self.fluid, self.scenario, self.scenario.precooling, self.T0
+        temps = [T for T, _ in spec.cooler_capacity]
+        capacity = PchipInterpolator(temps, [Q for _, Q in spec.cooler_capacity])
+        _, vapour = self.separator.saturation(fl)
+        lo = max(temps[0], vapour.T * (1.0 + 1e-6))
+        hi = min(temps[-1], sc.aftercooler.outlet_temperature * (1.0 - 1e-9), T0 * (1.0 - 1e-9))
+        if not lo < hi:
+            raise ScenarioError(
+                f"precooling.cooler_capacity spans {temps[0]:g} to {temps[-1]:g} K, but the precooling temperature "
+                f"must lie above the boiling temperature of {fl.name} at low_pressure ({vapour.T:.2f} K) and below "
+                f"the aftercooler outlet and ambient temperatures: extend the curve")
+        solved = {}
+
+        def solve_at(T):
+            if T not in solved:
+                child = PrecooledLindeHampson(replace(sc, precooling=replace(spec, temperature=float(T))), fl)
+                child._volume_mass_flow = self._volume_mass_flow
+                child._reference_densities = self._reference_densities
+                solved[T] = child._solve_at_temperature(xtol, maxiter)
+            return solved[T]
+
+        def gap(T):
+            return solve_at(T).precooler_load - float(capacity(T))
+
+        scan, errors = [], []
+        for T in [lo + (hi - lo) * k / (COOLER_SCAN - 1) for k in range(COOLER_SCAN)]:
+            try:
+                scan.append((T, gap(T)))
+            except (NoLiquefactionError, ScenarioError) as err:
+                errors.append(err)
+                scan.append((T, None))
+        valid = [(T, g) for T, g in scan if g is not None]
+        if not valid:
+            raise errors[len(errors) // 2]
+        for (Ta, ga), (Tb, gb) in zip(scan, scan[1:]):
+            if ga is not None and gb is not None and ga > 0 >= gb:
+                T = Tb if gb == 0 else brentq(gap, Ta, Tb, xtol=COOLER_XTOL, rtol=1e-14)
+                break
+        else:
+            def at(T, g):
+                load = g + float(capacity(T))
+                return f"at {T:.2f} K a load of {load:.4g} W against a capacity of {float(capacity(T)):.4g} W"
+
+            (T1, g1), (T2, g2) = valid[0], valid[-1]
+            ends = at(T1, g1) if T1 == T2 else f"{at(T1, g1)}, {at(T2, g2)}"
+            if all(g > 0 for _, g in valid):
+                raise CoolerTooSmallError(
+                    f"precooling.cooler_capacity is too small for this plant: the precooler load exceeds the "
+                    f"capacity at every temperature of the curve where the cycle runs ({ends}); use a larger "
+                    f"cooler or lower the production")
+            raise ScenarioError(
+                f"precooling.cooler_capacity is more than the load at every temperature of the curve where the "
+                f"cycle runs ({ends}): the balance lies below {T1:.2f} K, outside the curve; extend the curve to "
+                f"colder temperatures")
+        result = solve_at(T)
+        cap = float(capacity(T))
+        least = result.precooler_load * (T0 / T - 1.0)
+        if spec.cooler_input_power < least * (1.0 - 1e-12):
+            raise ScenarioError(
+                f"precooling.cooler_input_power {spec.cooler_input_power:g} W is less than the {least:.4g} W an ideal "
+                f"(Carnot) refrigerator needs to lift {result.precooler_load:.4g} W from {T:.2f} K to ambient "
+                f"{T0:g} K: the curve and the input power cannot both hold")
+        miss = result.precooler_load - cap
+        if abs(miss) > COOLER_BALANCE_RTOL * max(cap, 1e-300):
+            result.warnings.append(
+                f"precooling.cooler_capacity: the load {result.precooler_load:.6g} W misses the capacity "
+                f"{cap:.6g} W at {T:.4f} K by {miss:+.3g} W")
+        return replace(result, cooler_capacity=cap)
+
+    def _solve_at_temperature(self, xtol, maxiter):
         fl, sc = self.fluid, self.scenario
         warm, cold = self.warm, self.cold
         hp_in, liquid, vapour = self._fixed_states(self.suction_pressure)
@@ -85,7 +184,7 @@ class PrecooledLindeHampson(Liquefier):
                 f"already reaches ({warm_out.T:.2f} K): the precooler would have to heat; lower "
                 f"precooling.temperature or give the warm recuperator less size")
         _, precooler_duty = self.precooler.run(fl, warm_out)
-        supply = self.precooler.supply(precooler_duty)
+        supply = self.precooler.supply(precooler_duty, m)
 
         cold_out = fl.state_ph(cold.hot_outlet_pressure(cold_in.p), cold_in.h - duty_c)
         valve_out = self.valve.run(fl, cold_out)
@@ -126,7 +225,8 @@ class PrecooledLindeHampson(Liquefier):
             recuperators={"warm_recuperator": self._recuperator_result(duty_w, prof_w, eps_w, None),
                           "cold_recuperator": self._recuperator_result(duty_c, prof_c, eps_c, eps_crit)},
             reports={"cold_recuperator": report_c, "warm_recuperator": report_w}, losses=losses,
-            precooling_work=supply.work, precooler_duty=precooler_duty, coolant=supply.coolant, warn=warn)
+            precooling_work=supply.work, precooler_duty=precooler_duty, coolant=supply.coolant, warn=warn,
+            valves=[(cold_out, sc.low_pressure, 1.0)], coolant_density=supply.coolant_density)
 
 
 class DualPressureLindeHampson(Liquefier):
@@ -149,6 +249,7 @@ class DualPressureLindeHampson(Liquefier):
         sc = scenario
         self.recuperator = rec = Recuperator(sc.recuperator)
         self.i = sc.dual_pressure.recirculated_fraction
+        self.suction_flow = 1.0 - self.i
         self.intermediate_pressure = sc.dual_pressure.intermediate_pressure
         self.suction_pressure = rec.cold_outlet_pressure(sc.low_pressure)
         self.mixing_pressure = rec.cold_outlet_pressure(self.intermediate_pressure)
@@ -304,4 +405,5 @@ class DualPressureLindeHampson(Liquefier):
             makeup=makeup, liquid=liquid, throttle_outlet=valve_out,
             recuperators={"recuperator": self._recuperator_result(duty, prof, eps, eps_crit)},
             reports={"recuperator": report}, losses=losses, warn=warn,
-            receiver_vapour_fraction=vapour_fraction)
+            receiver_vapour_fraction=vapour_fraction,
+            valves=[(hp_out, p_i, 1.0), (feed, sc.low_pressure, 1.0 - i)])

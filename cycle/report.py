@@ -35,8 +35,11 @@ def _layout_text(sc):
         pc = sc.precooling
         how = (f"{pc.coolant} bath at {pc.coolant_pressure / 1e5:g} bar" if pc.coolant
                else f"refrigerator COP {pc.refrigerator_cop:g}" if pc.refrigerator_cop is not None
-               else f"refrigerator at {pc.refrigerator_carnot_fraction:g} of Carnot")
-        return (f"precooled to {pc.temperature:g} K ({how}); warm recuperator by "
+               else f"refrigerator at {pc.refrigerator_carnot_fraction:g} of Carnot"
+               if pc.refrigerator_carnot_fraction is not None
+               else f"cooler by its capacity curve, {pc.cooler_input_power / 1e3:g} kW input; the temperature "
+                    f"where the load equals the capacity")
+        return (f"precooled to {pc.temperature:.6g} K ({how}); warm recuperator by "
                 f"{_mode_text(sc.warm_recuperator)}, cold recuperator by {_mode_text(sc.cold_recuperator)}")
     if sc.layout == "dual-pressure":
         dp = sc.dual_pressure
@@ -70,12 +73,29 @@ def summary_sections(result):
         ("throttle outlet quality (vapour fraction)", number(s["throttle_outlet_quality"], "{:.4f}"), ""),
     ]
     sections = [("Performance", perf)]
+    sections.append(("Compressor", _compressor_rows(result, s)))
     if precooled:
-        rows = [("precooler duty per kg compressed", number(s["precooler_duty_kJ_per_kg_compressed"], "{:.2f}"),
-                 "kJ/kg")]
+        pc = sc.precooling
+        rows = []
+        if pc.cooler_capacity is not None:
+            rows.append(("precooling temperature (load = capacity)", number(pc.temperature, "{:.2f}"), "K"))
+        else:
+            rows.append(("precooling temperature", number(pc.temperature, "{:.2f}"), "K"))
+        rows.append(("precooler duty per kg compressed", number(s["precooler_duty_kJ_per_kg_compressed"], "{:.2f}"),
+                     "kJ/kg"))
+        if "precooler_load_W" in s:
+            rows.append(("precooler load", number(s["precooler_load_W"], "{:.1f}"), "W"))
+        if result.cooler_capacity is not None:
+            rows += [("cooler capacity at that temperature", number(result.cooler_capacity, "{:.1f}"), "W"),
+                     ("cooler input power (charged to the product)", number(pc.cooler_input_power / 1e3, "{:.3f}"),
+                      "kW")]
         if "coolant_kg_per_kg_liquid" in s:
             rows.append((f"{sc.precooling.coolant} boiled off per kg liquid",
                          number(s["coolant_kg_per_kg_liquid"], "{:.3f}"), "kg/kg"))
+        if "coolant_consumption_kg_per_h" in s:
+            rows += [(f"{pc.coolant} consumption", number(s["coolant_consumption_kg_per_h"], "{:.3f}"), "kg/h"),
+                     (f"{pc.coolant} consumption (saturated liquid)",
+                      number(s["coolant_consumption_L_per_h"], "{:.2f}"), "L/h")]
         sections.append(("Precooling", rows))
     q = result.receiver_vapour_fraction
     if q is not None:
@@ -85,6 +105,19 @@ def summary_sections(result):
         rows.append(("vapour passed on to the second valve", number(q - i, "{:.4f}"), "") if q >= i else
                     ("liquid returned with the vapour", number(i - q, "{:.4f}"), ""))
         sections.append(("Intermediate receiver (per kg compressed)", rows))
+    for k, valve in enumerate(result.valves, start=1):
+        title = "Throttle valve" if len(result.valves) == 1 else f"Throttle valve {k} of {len(result.valves)}"
+        rows = [
+            ("inlet -> outlet pressure",
+             f"{number(valve.inlet_pressure / 1e5, '{:.2f}')} -> {number(valve.outlet_pressure / 1e5, '{:.3g}')}", "bar"),
+            ("critical mass flux (HEM, isentropic)", number(valve.critical_mass_flux, "{:.4g}"), "kg/(m2 s)"),
+            ("choked", "yes" if valve.choked else "no", ""),
+            ("  throat pressure", number(valve.throat_pressure / 1e5, "{:.3g}"), "bar"),
+        ]
+        if valve.orifice_diameter is not None:
+            rows.append((f"minimum orifice diameter (Cd {valve.discharge_coefficient:g})",
+                         number(valve.orifice_diameter * 1e3, "{:.3f}"), "mm"))
+        sections.append((title, rows))
     for name, rec in result.recuperators.items():
         rows = [("effectiveness", number(rec.effectiveness, "{:.4f}"), "")]
         crit = rec.critical_effectiveness
@@ -107,6 +140,7 @@ def summary_sections(result):
             ("compressor flow", number(s["compressor_flow_kg_per_h"], "{:.2f}"), "kg/h"),
             ("liquid rate", number(s["liquid_rate_kg_per_h"], "{:.3f}"), "kg/h"),
             ("liquid rate (saturated liquid)", number(s["liquid_rate_L_per_h"], "{:.3f}"), "L/h"),
+            ("liquid rate (gas equivalent, normal)", number(s["liquid_rate_Nm3_per_h"], "{:.3f}"), "Nm3/h"),
             ("compressor power", number(s["compressor_power_kW"], "{:.3f}"), "kW"),
         ]
         if precooled:
@@ -126,6 +160,79 @@ def summary_sections(result):
     return sections
 
 
+def _compressor_rows(result, s):
+    """The compressor block: model, flows at suction and normal conditions, powers, hottest discharge."""
+    spec = result.scenario.compressor
+    stages = result.compressor_stage_rows()
+    if spec.model == "isothermal":
+        rows = [("model", "isothermal", ""),
+                ("  isothermal efficiency", number(spec.isothermal_efficiency, "{:.3f}"), "")]
+    else:
+        per = " per section" if len(result.compressions) > 1 else ""
+        rows = [("stages (isentropic efficiency)", f"{spec.stages}{per} ({spec.isentropic_efficiency:g})", ""),
+                ("hottest stage discharge", number(s["max_discharge_temperature_K"], "{:.1f}"), "K")]
+    rows.append(("overall pressure ratio", number(stages[-1]["discharge_pressure_bar"]
+                                                  / stages[0]["suction_pressure_bar"], "{:.1f}"), ""))
+    if "compressor_gas_power_kW" in s:
+        rows += [
+            ("suction volume flow (actual, at suction)", number(s["compressor_suction_volume_flow_m3_per_h"], "{:.3f}"),
+             "m3/h"),
+            ("normal volume flow (0 degC, 1.01325 bar)", number(s["compressor_normal_volume_flow_Nm3_per_h"], "{:.3f}"),
+             "Nm3/h"),
+            ("gas power", number(s["compressor_gas_power_kW"], "{:.3f}"), "kW"),
+            (f"shaft power (mechanical efficiency {spec.mechanical_efficiency:g})",
+             number(s["compressor_shaft_power_kW"], "{:.3f}"), "kW"),
+            (f"electric power (motor efficiency {spec.motor_efficiency:g})",
+             number(s["compressor_electric_power_kW"], "{:.3f}"), "kW"),
+        ]
+    return rows
+
+
+# Columns of the compressor stage table: (heading, row key, format).
+STAGE_COLUMNS = [
+    ("stage", "stage", "{:d}"),
+    ("p in [bar]", "suction_pressure_bar", "{:.3f}"),
+    ("p out [bar]", "discharge_pressure_bar", "{:.3f}"),
+    ("ratio", "pressure_ratio", "{:.3f}"),
+    ("T in [K]", "suction_temperature_K", "{:.1f}"),
+    ("T out [K]", "discharge_temperature_K", "{:.1f}"),
+    ("V in [m3/h]", "suction_volume_flow_m3_per_h", "{:.3f}"),
+    ("P [kW]", "power_kW", "{:.3f}"),
+    ("cooler [kW]", "intercooler_duty_kW", "{:.3f}"),
+]
+
+
+def stage_table(result):
+    """(headings, rows of cells, notes) of the compressor stage table; the columns of flows and
+    powers only with a production target."""
+    rows = result.compressor_stage_rows()
+    columns = [c for c in STAGE_COLUMNS if any(r.get(c[1]) is not None for r in rows) or c[1] == "discharge_temperature_K"]
+    cells = [[number(r[key], fmt) if r.get(key) is not None else "-" for _, key, fmt in columns] for r in rows]
+    sections = {r["section"] for r in rows}
+    notes = []
+    if sections != {None}:
+        columns = [("section", None, None)] + columns
+        cells = [[r["section"].split("-")[0]] + c for r, c in zip(rows, cells)]
+        notes.append("section: the low- and high-pressure sections of the compressor")
+    if rows and rows[0]["discharge_temperature_K"] is None:
+        notes.append(rows[0]["model"])
+    notes.append("V in: actual volume flow at the stage suction; P: gas power; cooler: the intercooler after "
+                 "each stage, after the last stage the aftercooler")
+    return [h for h, _, _ in columns], cells, notes
+
+
+def format_stages(result):
+    """The compressor stage table as text."""
+    import textwrap
+
+    headings, cells, notes = stage_table(result)
+    widths = [max(len(h), *(len(c[k]) for c in cells)) for k, h in enumerate(headings)]
+    lines = ["  " + " ".join(f"{h:>{w}s}" for h, w in zip(headings, widths))]
+    lines += ["  " + " ".join(f"{v:>{w}s}" for v, w in zip(c, widths)) for c in cells]
+    lines += [textwrap.fill(n, WIDTH, initial_indent="  ", subsequent_indent="    ") for n in notes]
+    return "\n".join(lines)
+
+
 def format_result(result):
     """The design point as readable text: headline numbers, sizing, losses, solve and state table."""
     import textwrap
@@ -137,6 +244,8 @@ def format_result(result):
            textwrap.fill(_layout_text(sc), WIDTH, initial_indent="  ", subsequent_indent="    ")]
     for title, rows in summary_sections(result):
         out += ["", title] + [f"  {label:<44s} {value:>12s} {unit}".rstrip() for label, value, unit in rows]
+        if title == "Compressor":
+            out += ["", "Compressor stages", format_stages(result)]
     out += ["", "Where the work goes (exergy, per kg of liquid)", format_exergy(result)]
     out += ["", "Solve"] + [textwrap.fill(line, WIDTH, initial_indent="  ", subsequent_indent="    ")
                             for line in solve_lines(result)]

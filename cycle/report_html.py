@@ -79,7 +79,8 @@ def build_report(result, scenario_text, when=None):
     parts.append("<div class='caution'><b>Safety.</b> " + html.escape(CAUTIONS.replace("safety: ", "", 1))
                  .replace("\n", " ") + "</div>")
 
-    from cycle.report import exergy_rows, number, solve_lines, state_cells, state_columns, summary_sections
+    from cycle.report import (exergy_rows, number, solve_lines, stage_table, state_cells, state_columns,
+                              summary_sections)
 
     parts.append("<h2>Summary</h2>")
     for title, rows in summary_sections(result):
@@ -87,6 +88,12 @@ def build_report(result, scenario_text, when=None):
         parts.append(_table(["quantity", "value", "unit"],
                             [(html.escape(label.strip()), html.escape(value), html.escape(unit))
                              for label, value, unit in rows], text_columns=(0, 2)))
+        if title == "Compressor":
+            headings, cells, notes = stage_table(result)
+            parts.append("<h3>Compressor stages</h3>")
+            parts.append(_table(headings, [[html.escape(c) for c in row] for row in cells],
+                                text_columns=(0,) if headings[0] == "section" else ()))
+            parts += [f"<p class='meta'>{html.escape(note)}</p>" for note in notes]
 
     if result.warnings:
         parts.append("<h2>Warnings</h2>")

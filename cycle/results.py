@@ -166,6 +166,25 @@ class CycleResult:
     receiver_vapour_fraction : float or None
         Dual-pressure layout below the critical pressure: vapour fraction of the first valve's
         outflow into the intermediate receiver [-]; None where it is one phase.
+    compressions : tuple of (str, cycle.equipment.CompressionResult, float)
+        Each compression with its section name (``""``, or ``"low-pressure"`` and
+        ``"high-pressure"``) and its flow per kg of compressor flow.
+    gas_work_per_kg_compressed : float
+        Work done on the gas by the compressor stages [J/kg of compressor flow] (without the
+        drive's losses and the chillers).
+    drive_loss_per_kg_compressed : float
+        Mechanical and motor losses of the compressor drive [J/kg of compressor flow].
+    normal_density : float or None
+        Density of the gas at 0 degC and 1.01325 bar (DIN 1343) [kg/m3]; None where it is not
+        a gas there.
+    valves : tuple of cycle.orifice.ValveSizing
+        The throttle valves in flow order (the last one feeds the separator).
+    precooler_load : float or None
+        Heat the precooler takes [W], with a production target.
+    coolant_liquid_density : float or None
+        Density of the bath coolant as it is fed, saturated liquid [kg/m3].
+    cooler_capacity : float or None
+        Capacity of a precooler given by its capacity curve at the precooling temperature [W].
     """
 
     scenario: object
@@ -189,6 +208,71 @@ class CycleResult:
     coolant_per_kg_compressed: Optional[float] = None
     warnings: list = field(default_factory=list)
     receiver_vapour_fraction: Optional[float] = None
+    compressions: tuple = ()
+    gas_work_per_kg_compressed: float = 0.0
+    drive_loss_per_kg_compressed: float = 0.0
+    normal_density: Optional[float] = None
+    valves: tuple = ()
+    precooler_load: Optional[float] = None
+    coolant_liquid_density: Optional[float] = None
+    cooler_capacity: Optional[float] = None
+
+    @property
+    def suction(self):
+        """(compressor suction state, its flow per kg of compressor flow)."""
+        _, first, flow = self.compressions[0]
+        return first.stages[0].suction, flow
+
+    @property
+    def max_discharge_temperature(self):
+        """Hottest stage discharge [K]; None for the isothermal model (no stage discharge)."""
+        if any(c.model == "isothermal" for _, c, _ in self.compressions):
+            return None
+        return max(st.discharge.T for _, c, _ in self.compressions for st in c.stages)
+
+    def compressor_stage_rows(self):
+        """One dictionary per compressor stage, numbered along the whole train (the datasheet)."""
+        m = self.compressor_flow
+        rows = []
+        number = 0
+        last = len(self.compressions) - 1
+        for k, (section, comp, flow) in enumerate(self.compressions):
+            isothermal = comp.model == "isothermal"
+            for st in comp.stages:
+                number += 1
+                feeds_aftercooler = k == last and st is comp.stages[-1]
+                # the isothermal model's heat leaves inside the machine, not in an intercooler
+                duty = self.aftercooler_duty if feeds_aftercooler else 0.0 if isothermal else st.cooler_duty
+                outlet = None if feeds_aftercooler else st.cooler_outlet
+                if feeds_aftercooler:
+                    outlet_T = next(s.state.T for s in self.states if s.name.startswith("aftercooler outlet"))
+                else:
+                    outlet_T = outlet.T if outlet is not None else None
+                row = {
+                    "stage": number,
+                    "section": section or None,
+                    "model": ("isothermal-efficiency model: the heat of compression is removed inside the "
+                              "machine, which delivers the gas at the cooling temperature; no stage discharge "
+                              "temperature is modelled") if isothermal else "isentropic-efficiency stage",
+                    "suction_pressure_bar": st.suction.p / 1e5,
+                    "discharge_pressure_bar": st.discharge.p / 1e5,
+                    "pressure_ratio": st.discharge.p / st.suction.p,
+                    "suction_temperature_K": st.suction.T,
+                    "discharge_temperature_K": None if isothermal else st.discharge.T,
+                    "work_kJ_per_kg": st.work / 1e3,
+                    "cooler": "aftercooler" if feeds_aftercooler else "intercooler",
+                    "cooler_outlet_temperature_K": outlet_T,
+                    "flow_per_kg_compressed": flow,
+                    "mass_flow_kg_per_h": None if m is None else m * flow * 3600.0,
+                    "suction_volume_flow_m3_per_h": None if m is None else m * flow / st.suction.density * 3600.0,
+                    "power_kW": None if m is None else m * flow * st.work / 1e3,
+                    "intercooler_duty_kW": None if m is None else m * (flow if not feeds_aftercooler else 1.0)
+                    * duty / 1e3,
+                }
+                if isothermal:
+                    row["heat_removed_in_machine_kW"] = None if m is None else m * flow * st.cooler_duty / 1e3
+                rows.append(row)
+        return rows
 
     @property
     def recuperator(self):
@@ -253,7 +337,13 @@ class CycleResult:
             "throttle_outlet_quality": self.throttle_outlet.quality,
             "heat_rejected_kJ_per_kg_compressed": (self.compressor_heat_rejected + self.aftercooler_duty) / 1e3,
             "energy_balance_residual": self.energy_balance_residual,
+            "max_discharge_temperature_K": self.max_discharge_temperature,
         })
+        if self.scenario.layout == "precooled":
+            out["precooling_temperature_K"] = self.scenario.precooling.temperature
+        valve = self.valves[-1] if self.valves else None
+        out["valve_critical_mass_flux_kg_per_m2_s"] = valve.critical_mass_flux if valve else None
+        out["valve_choked"] = valve.choked if valve else None
         m = self.compressor_flow
         if m is not None:
             m_liq = m * y
@@ -276,6 +366,26 @@ class CycleResult:
                     out[f"{name}_duty_kW"] = m * rec.duty / 1e3
             if self.coolant_per_kg_compressed is not None:
                 out["coolant_kg_per_h"] = m * self.coolant_per_kg_compressed * 3600.0
+            suction, flow = self.suction
+            rho_n = self.normal_density
+            sc = self.scenario.compressor
+            gas = m * self.gas_work_per_kg_compressed / 1e3
+            out.update({
+                "compressor_suction_volume_flow_m3_per_h": m * flow / suction.density * 3600.0,
+                "compressor_normal_volume_flow_Nm3_per_h": m * flow / rho_n * 3600.0 if rho_n else None,
+                "compressor_gas_power_kW": gas,
+                "compressor_shaft_power_kW": gas / sc.mechanical_efficiency,
+                "compressor_electric_power_kW": gas / sc.mechanical_efficiency / sc.motor_efficiency,
+                "liquid_rate_Nm3_per_h": m_liq / rho_n * 3600.0 if rho_n else None,
+                "valve_orifice_diameter_mm": (valve.orifice_diameter * 1e3 if valve and valve.orifice_diameter
+                                              else None),
+            })
+            if self.scenario.layout == "precooled":
+                out["precooler_load_W"] = self.precooler_load
+            if self.coolant_per_kg_compressed is not None:
+                kg_h = m * self.coolant_per_kg_compressed * 3600.0
+                out["coolant_consumption_kg_per_h"] = kg_h
+                out["coolant_consumption_L_per_h"] = kg_h / self.coolant_liquid_density * 1e3
         return out
 
     def state_rows(self):
@@ -324,6 +434,8 @@ class CycleResult:
             "warnings": list(self.warnings),
             "solve": dict(self.solve.to_dict(), sections={k: r.to_dict() for k, r in self.sections.items()}),
             "recuperator_profiles": {name: self.profile_rows(name) for name in self.recuperators},
+            "compressor_stages": self.compressor_stage_rows(),
+            "valves": [v.to_dict() for v in self.valves],
         }
 
 
@@ -347,7 +459,10 @@ def summary_keys(scenario):
     if scenario.layout == "dual-pressure":
         keys.append("receiver_vapour_fraction")
     keys += ["throttle_outlet_temperature_K", "throttle_outlet_quality", "heat_rejected_kJ_per_kg_compressed",
-             "energy_balance_residual"]
+             "energy_balance_residual", "max_discharge_temperature_K"]
+    if scenario.layout == "precooled":
+        keys.append("precooling_temperature_K")
+    keys += ["valve_critical_mass_flux_kg_per_m2_s", "valve_choked"]
     if scenario.production is not None:
         keys += ["compressor_flow_kg_per_h", "liquid_rate_kg_per_h", "liquid_rate_L_per_h", "compressor_power_kW",
                  "precooling_power_kW", "aftercooler_duty_kW", "heat_rejected_kW", "precooler_duty_kW",
@@ -357,6 +472,13 @@ def summary_keys(scenario):
                 keys += [f"{name}_UA_W_per_K", f"{name}_duty_kW"]
         if coolant:
             keys.append("coolant_kg_per_h")
+        keys += ["compressor_suction_volume_flow_m3_per_h", "compressor_normal_volume_flow_Nm3_per_h",
+                 "compressor_gas_power_kW", "compressor_shaft_power_kW", "compressor_electric_power_kW",
+                 "liquid_rate_Nm3_per_h", "valve_orifice_diameter_mm"]
+        if scenario.layout == "precooled":
+            keys.append("precooler_load_W")
+        if coolant:
+            keys += ["coolant_consumption_kg_per_h", "coolant_consumption_L_per_h"]
     return keys
 
 

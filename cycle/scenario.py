@@ -125,14 +125,30 @@ class PrecoolingSpec:
         Coefficient of performance of a precooling refrigerator rejecting heat at ambient [-].
     refrigerator_carnot_fraction : float or None
         Its COP as a fraction of the Carnot COP between the precooling temperature and ambient [-].
+    cooler_capacity : tuple of (float, float) or None
+        A cryocooler's or refrigerator's capacity curve, (temperature [K], capacity [W]) pairs
+        with rising temperature.  Given instead of ``temperature``: the solve finds the
+        temperature where the precooler load equals the capacity (and sets ``temperature``).
+    cooler_input_power : float or None
+        Power that cooler draws [W], charged to the product.
     """
 
-    temperature: float
+    temperature: Optional[float] = None
     coolant: Optional[str] = None
     coolant_pressure: float = 101325.0
     coolant_work: Optional[float] = None
     refrigerator_cop: Optional[float] = None
     refrigerator_carnot_fraction: Optional[float] = None
+    cooler_capacity: Optional[tuple] = None
+    cooler_input_power: Optional[float] = None
+
+
+@dataclass(frozen=True)
+class ValveSpec:
+    """Throttle valve: the discharge coefficient of its orifice [-] (None: the default of
+    :mod:`cycle.orifice`, 0.61)."""
+
+    discharge_coefficient: Optional[float] = None
 
 
 @dataclass(frozen=True)
@@ -161,6 +177,7 @@ class Scenario:
     warm_recuperator: Optional[RecuperatorSpec] = None
     cold_recuperator: Optional[RecuperatorSpec] = None
     dual_pressure: Optional[DualPressureSpec] = None
+    valve: ValveSpec = ValveSpec()
     source: dict = field(default_factory=dict, compare=False, repr=False)
 
     @property
@@ -178,6 +195,10 @@ class Scenario:
         out.pop("source")
         if self.compressor.isothermal_efficiency is not None:
             out["compressor"].pop("stages")
+            for key in ("intercooler_pressure_drop",):
+                out["compressor"].pop(key)
+        if self.precooling is not None and self.precooling.coolant is None:
+            out["precooling"].pop("coolant_pressure")
         for key, value in list(out.items()):
             if isinstance(value, dict):
                 out[key] = {k: v for k, v in value.items() if v is not None}
@@ -191,6 +212,12 @@ class Scenario:
 
 # Volume flows of gas at a reference condition (cycle.units.REFERENCE_CONDITIONS).
 GAS_VOLUME_FLOWS = ("normal_volume_flow", "standard_volume_flow", "standard_us_volume_flow")
+
+# Kinds of key that hold a list, with what to do instead of sweeping one.
+LIST_KINDS = {
+    "pressure_list": "sweep compressor.stages (equal pressure ratios), or write one scenario per list",
+    "capacity_curve": "sweep precooling.cooler_input_power, or write one scenario per curve",
+}
 
 # key -> kind; a kind is a dimension name for quantities, or one of
 # "text", "gas", "integer", "number", a dict (a nested section), or a tuple of dimensions.
@@ -224,6 +251,9 @@ SCHEMA = {
         "low_side_pressure_drop": "pressure",
     },
     "heat_leak": "power",
+    "valve": {
+        "discharge_coefficient": "number",
+    },
     "precooling": {
         "temperature": "temperature",
         "coolant": "text",
@@ -231,6 +261,8 @@ SCHEMA = {
         "coolant_work": "specific_energy",
         "refrigerator_cop": "number",
         "refrigerator_carnot_fraction": "number",
+        "cooler_capacity": "capacity_curve",
+        "cooler_input_power": "power",
     },
     "warm_recuperator": "recuperator",
     "cold_recuperator": "recuperator",
@@ -291,9 +323,9 @@ def key_kind(key, where="sweep."):
             hint = f"; did you mean {close[0]}?" if close else ""
             raise ScenarioError(f"{where}{printable(key, 60)}: not a scenario key{hint}")
         node = node[part]
-    if node == "pressure_list":
-        raise ScenarioError(f"{where}{key}: a list of pressures cannot be {'swept' if where == 'sweep.' else 'varied'}; "
-                            f"sweep compressor.stages (equal pressure ratios), or write one scenario per list")
+    if isinstance(node, str) and node in LIST_KINDS:
+        raise ScenarioError(f"{where}{key}: a list cannot be {'swept' if where == 'sweep.' else 'varied'}; "
+                            f"{LIST_KINDS[node]}")
     if isinstance(node, dict):
         raise ScenarioError(f"{where}{key}: a section cannot be {'swept' if where == 'sweep.' else 'varied'}; "
                             f"use one of its keys, e.g. {key}.{next(iter(node))}")
@@ -501,6 +533,9 @@ def parse_scenario(data):
         heat_leak = _quantity(data, "heat_leak", "power", "heat_leak")
         if heat_leak < 0:
             raise ScenarioError(f"heat_leak must be 0 or more, got {data['heat_leak']!r}")
+    if precooling is not None and precooling.cooler_capacity is not None and production is None:
+        raise ScenarioError("precooling.cooler_capacity needs production: give production.liquid_rate or "
+                            "production.compressor_flow (the cooler's capacity is a power, W)")
     if heat_leak > 0 and production is None:
         raise ScenarioError("heat_leak needs production: give production.liquid_rate or production.compressor_flow")
     for key in ("recuperator", "warm_recuperator", "cold_recuperator"):
@@ -509,23 +544,37 @@ def parse_scenario(data):
             raise ScenarioError(f"{key}.ua needs production: give production.liquid_rate or "
                                 "production.compressor_flow (UA is an absolute size, W/K)")
 
+    valve = ValveSpec()
+    if (data.get("valve") or {}).get("discharge_coefficient") is not None:
+        cd = _number(data["valve"], "discharge_coefficient", "valve.discharge_coefficient")
+        valve = ValveSpec(_between(cd, "valve.discharge_coefficient", 0, 1,
+                                   given=data["valve"]["discharge_coefficient"]))
+
     return Scenario(gas=gas, ambient_temperature=T0, low_pressure=p_low, high_pressure=p_high,
                     compressor=compressor, aftercooler=aftercooler, recuperator=recuperator,
                     heat_leak=heat_leak, production=production, name=name, precooling=precooling,
-                    warm_recuperator=warm, cold_recuperator=cold, dual_pressure=dual, source=dict(data))
+                    warm_recuperator=warm, cold_recuperator=cold, dual_pressure=dual, valve=valve,
+                    source=dict(data))
 
 
 def _parse_precooling(section, T_hot):
     if section is None:
         return None
+    if section.get("cooler_capacity") is not None:
+        return _parse_cooler(section, T_hot)
+    if section.get("cooler_input_power") is not None:
+        raise ScenarioError("precooling.cooler_input_power goes with precooling.cooler_capacity (a cooler given by "
+                            "its capacity curve)")
     if section.get("temperature") is None:
         raise ScenarioError("missing precooling.temperature: expected the temperature the precooler "
-                            "brings the high-pressure stream to, such as '80 K'")
+                            "brings the high-pressure stream to, such as '80 K' (or give the cooler's "
+                            "precooling.cooler_capacity curve)")
     T = _quantity(section, "temperature", "temperature", "precooling.temperature")
     if not 0 < T < T_hot:
         raise ScenarioError(f"precooling.temperature must be above 0 and below the aftercooler outlet "
                             f"temperature ({T_hot:g} K), got {section['temperature']!r}")
-    kind = _exactly_one(section, ["coolant", "refrigerator_cop", "refrigerator_carnot_fraction"], "precooling")
+    kind = _exactly_one(section, ["coolant", "refrigerator_cop", "refrigerator_carnot_fraction", "cooler_capacity"],
+                        "precooling")
     values = {"temperature": T}
     if kind != "coolant":
         for key in ("coolant_pressure", "coolant_work"):
@@ -558,6 +607,47 @@ def _parse_precooling(section, T_hot):
         values["refrigerator_carnot_fraction"] = _between(
             f, "precooling.refrigerator_carnot_fraction", 0, 1, given=section["refrigerator_carnot_fraction"])
     return PrecoolingSpec(**values)
+
+
+def _parse_cooler(section, T_hot):
+    """A precooler given by its cooler's capacity curve and input power."""
+    key = "precooling.cooler_capacity"
+    for other in ("temperature", "coolant", "coolant_pressure", "coolant_work", "refrigerator_cop",
+                  "refrigerator_carnot_fraction"):
+        if section.get(other) is not None:
+            why = (" (lhsim finds it where the load equals the capacity)" if other == "temperature" else "")
+            raise ScenarioError(f"give {key} without precooling.{other}{why}")
+    curve = section["cooler_capacity"]
+    if not isinstance(curve, list) or len(curve) < 2:
+        raise ScenarioError(f"{key} must be a list of at least two [temperature, capacity] pairs, such as "
+                            f"[['40 K', '20 W'], ['80 K', '90 W']], got {shown(curve)}")
+    points = []
+    for k, pair in enumerate(curve, start=1):
+        full = f"{key}[{k}]"
+        if not isinstance(pair, list) or len(pair) != 2:
+            raise ScenarioError(f"{full} must be a [temperature, capacity] pair such as ['60 K', '50 W'], "
+                                f"got {shown(pair)}")
+        try:
+            T = parse_quantity(pair[0], "temperature")
+            Q = parse_quantity(pair[1], "power")
+        except UnitError as err:
+            raise ScenarioError(f"{full}: {err}") from None
+        if not 0 < T < T_hot:
+            raise ScenarioError(f"{full}: the temperature must be above 0 and below the aftercooler outlet "
+                                f"temperature ({T_hot:g} K), got {shown(pair[0])}")
+        if Q < 0:
+            raise ScenarioError(f"{full}: the capacity must be 0 or more, got {shown(pair[1])}")
+        if points and T <= points[-1][0]:
+            raise ScenarioError(f"{key} must list its points with rising temperature, got {shown(pair[0])} "
+                                f"after {points[-1][0]:g} K")
+        points.append((T, Q))
+    if section.get("cooler_input_power") is None:
+        raise ScenarioError("missing precooling.cooler_input_power: expected the power the cooler draws, "
+                            "such as '7.5 kW'")
+    P = _quantity(section, "cooler_input_power", "power", "precooling.cooler_input_power")
+    if P <= 0:
+        raise ScenarioError(f"precooling.cooler_input_power must be above 0, got {section['cooler_input_power']!r}")
+    return PrecoolingSpec(cooler_capacity=tuple(points), cooler_input_power=P)
 
 
 def _parse_dual_pressure(section, p_low, p_hot_in):

@@ -394,6 +394,8 @@ def run_batch(batch):
 def _cell(value):
     if value is None:
         return ""
+    if isinstance(value, bool):  # a yes-or-no summary value (valve_choked) in a float column: 1.0 or 0.0
+        return repr(float(value))
     if isinstance(value, float):
         return "" if not math.isfinite(value) else repr(value)
     return str(value)

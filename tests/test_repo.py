@@ -31,3 +31,38 @@ def test_images_the_docs_show_exist():
     for page in [ROOT / "README.md", *sorted((ROOT / "docs").glob("*.md"))]:
         for target in re.findall(r"!\[[^\]]*\]\(([^)]+)\)", page.read_text()):
             assert (page.parent / target).exists(), f"{page.name} shows missing {target}"
+
+
+def test_every_scenario_key_and_summary_key_is_documented():
+    """The glossary names every scenario key (dotted) and every summary key of every layout; the
+    scenario-format page has every scenario key in one of its tables."""
+    from cycle.results import summary_keys
+    from cycle.scenario import SCHEMA, all_keys, load_scenario
+
+    glossary = (ROOT / "docs" / "glossary.md").read_text()
+    formats = (ROOT / "docs" / "scenario-format.md").read_text()
+    for key in all_keys():
+        if isinstance(eval_kind(SCHEMA, key), dict) or key.startswith(("warm_recuperator", "cold_recuperator")):
+            continue
+        assert f"`{key}`" in glossary or key == "sweep", key
+        assert f"`{key.split('.')[-1]}`" in formats, key
+    for demo in sorted((ROOT / "scenarios").glob("*.yaml")):
+        for key in summary_keys(load_scenario(demo)):
+            generic = key
+            for name in ("warm_recuperator", "cold_recuperator", "recuperator"):
+                if key.startswith(name + "_") and key[len(name) + 1:] in _PER_RECUPERATOR:
+                    generic = "{name}_" + key[len(name) + 1:]
+                    break
+            assert f"`{generic}`" in glossary or f"`{key}`" in glossary or key in glossary, key
+
+
+_PER_RECUPERATOR = {"effectiveness", "critical_effectiveness", "min_approach_K", "min_approach_position",
+                    "warm_end_approach_K", "cold_end_approach_K", "duty_kJ_per_kg_compressed",
+                    "UA_W_per_K_per_kg_per_s"}
+
+
+def eval_kind(schema, key):
+    node = schema
+    for part in key.split("."):
+        node = node[part]
+    return node
