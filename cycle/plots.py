@@ -275,11 +275,13 @@ def exchanger_profiles(result):
 
 def loss_data(result):
     """Bars from ideal to actual work [kJ/kg liquid]: (label, start, height, share in percent)."""
+    from cycle.results import loss_label
+
     total = result.work_per_kg_liquid / 1e3
     bars = [("ideal work", 0.0, result.ideal_work_per_kg_liquid / 1e3)]
     level = bars[0][2]
     for name, value in result.exergy_losses_per_kg_liquid().items():
-        bars.append((name.replace("_", " "), level, value / 1e3))
+        bars.append((loss_label(name), level, value / 1e3))
         level += value / 1e3
     return {"bars": [(label, start, height, 100.0 * height / total) for label, start, height in bars],
             "actual": total}
