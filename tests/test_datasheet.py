@@ -337,3 +337,39 @@ def test_a_sweep_over_normal_volume_flows_has_its_column_in_Nm3_per_h():
     assert list(frame["compressor_flow_kg_per_h"]) == pytest.approx(
         [30.0 * normal_density("Argon"), 45.0 * normal_density("Argon")], rel=1e-9)
     assert set(frame["valve_choked"]) <= {0.0, 1.0}
+
+
+# -- the laws over random datasheets ----------------------------------------------------------
+
+from hypothesis import HealthCheck, given, settings, strategies as st  # noqa: E402
+
+
+@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(stages=st.integers(2, 6), eta=st.floats(0.5, 1.0), spread=st.floats(0.3, 1.7),
+       T_ic=st.floats(240.0, 340.0), dp=st.floats(0.0, 0.3), eta_m=st.floats(0.5, 1.0), eta_mot=st.floats(0.5, 1.0),
+       flow=st.sampled_from(["60 kg/h", "40 m^3/h", "35 Nm^3/h", "25 scfm"]))
+def test_random_compressors_keep_the_second_law(stages, eta, spread, T_ic, dp, eta_m, eta_mot, flow):
+    # Interstage pressures spread unevenly about equal ratios (spread 1: equal), intercoolers
+    # above or below ambient, drive losses, each way of giving the flow: no exergy loss below
+    # zero, a figure of merit below 1, the exergy and energy balances closed.
+    p_s, p_h = 1.15, 180.0
+    fractions = [(k / stages) ** spread for k in range(1, stages)]
+    pressures = [f"{p_s * (p_h / p_s) ** f:.6g} bar" for f in fractions]
+    comp = {"stages": stages, "isentropic_efficiency": eta, "stage_pressures": pressures,
+            "intercooler_temperature": f"{T_ic} K", "intercooler_pressure_drop": f"{dp} bar",
+            "mechanical_efficiency": eta_m, "motor_efficiency": eta_mot, "max_discharge_temperature": "1000 K"}
+    try:
+        result = solve(argon(comp, production={"compressor_flow": flow}))
+    except ScenarioError as err:  # an uneven spread can leave a stage drawing above its discharge
+        assert "compressor" in str(err)
+        return
+    work = result.total_work_per_kg_compressed
+    assert min(result.exergy_losses.values()) > -1e-7 * work
+    assert 0.0 < result.figure_of_merit < 1.0
+    total = result.ideal_work_per_kg_liquid + sum(result.exergy_losses_per_kg_liquid().values())
+    assert total == pytest.approx(result.work_per_kg_liquid, rel=1e-7)
+    assert abs(result.energy_balance_residual) < 1e-8
+    s = result.summary()
+    assert s["compressor_electric_power_kW"] == pytest.approx(
+        s["compressor_gas_power_kW"] / (eta_m * eta_mot), rel=1e-9)
+    assert result.valves[-1].critical_mass_flux > 0
