@@ -1,0 +1,213 @@
+"""Heat transfer and friction in a tube-in-tube recuperator: the local coefficients a zone of the
+march needs, from the field's libraries (``ht`` for Nusselt numbers, ``fluids`` for friction
+factors) where they have the correlation, and written here (named, with their source) where they
+do not.
+
+The high-pressure stream flows inside the inner tubes, the return gas in the annulus around each.
+Every function takes SI numbers and returns SI numbers; none calls CoolProp (the caller passes the
+stream's transport properties).
+
+References
+----------
+- V. Gnielinski, "New equations for heat and mass transfer in turbulent pipe and channel flow",
+  *Int. Chem. Eng.* 16 (1976) 359-368: the turbulent tube correlation (``ht.conv_internal.
+  turbulent_Gnielinski``), 2300 < Re < 5e6.
+- V. Gnielinski, "Heat transfer coefficients for turbulent flow in concentric annular ducts",
+  *Heat Transfer Eng.* 30 (2009) 431-436, and *VDI Heat Atlas*, 2nd ed., Springer, 2010, chapter
+  G2: the annulus (its friction factor on a modified Reynolds number, the factor
+  F_ann = 0.75 a^-0.17 for heat through the inner wall with the outer one insulated, and the
+  laminar value 3.66 + 1.2 a^-0.8); the linear interpolation between Re = 2300 and 1e4 in the
+  transition region (*VDI Heat Atlas*, G1).  Equations and constants from memory.
+- C. F. Colebrook, *J. Inst. Civil Eng.* 11 (1939) 133-156: the Darcy friction factor of a
+  rough tube (``fluids.friction.friction_factor``, method ``Colebrook``).
+- Y. Mori and W. Nakayama, *Int. J. Heat Mass Transfer* 10 (1967) 681-695: turbulent flow in a
+  helical coil (``ht.conv_internal.helical_turbulent_Nu_Mori_Nakayama``, ``fluids.
+  helical_turbulent_fd_Mori_Nakayama``); the coil's critical Reynolds number by
+  ``fluids.helical_Re_crit`` (Schmidt).
+- E. D. Marquardt, J. P. Le and R. Radebaugh, "Cryogenic material properties database", 11th
+  International Cryocooler Conference, 2000 (NIST): the thermal conductivity of 304 stainless
+  steel, log10 k = sum a_i (log10 T)^i, 1 to 300 K.
+"""
+
+from dataclasses import dataclass
+import math
+
+# The Reynolds numbers that bound the transition region of tubes and annuli (VDI Heat Atlas, G1).
+RE_LAMINAR = 2300.0
+RE_TURBULENT = 1e4
+# Laminar, hydrodynamically and thermally developed flow in a tube with uniform heat flux:
+# Nu = 48/11 (Incropera and DeWitt, *Fundamentals of Heat and Mass Transfer*, ch. 8).
+NU_LAMINAR_TUBE = 48.0 / 11.0
+
+# 304 stainless steel, NIST fit (Marquardt, Le and Radebaugh 2000), valid 1 to 300 K; above 300 K
+# the 300 K value is kept (it rises by about 10 % to 400 K: common practice to take it flat there).
+_SS304 = (-1.4087, 1.3982, 0.2543, -0.6260, 0.2334, 0.4256, -0.4658, 0.1650, -0.0199)
+WALL_MATERIALS = {"stainless steel 304": (_SS304, 1.0, 300.0)}
+
+
+def wall_conductivity(material, T):
+    """Thermal conductivity [W/(m K)] of a wall material at ``T`` [K] (clamped to its fit's range).
+
+    Parameters
+    ----------
+    material : str
+        A key of :data:`WALL_MATERIALS`.
+    T : float
+        [K]
+    """
+    coefficients, T_low, T_high = WALL_MATERIALS[material]
+    x = math.log10(min(max(T, T_low), T_high))
+    return 10.0 ** sum(a * x ** i for i, a in enumerate(coefficients))
+
+
+@dataclass(frozen=True)
+class Coefficient:
+    """A local heat-transfer coefficient and friction factor.
+
+    Attributes
+    ----------
+    nusselt : float
+        [-], on the passage's hydraulic diameter.
+    friction : float
+        Darcy friction factor [-].
+    regime : str
+        ``laminar``, ``transitional`` or ``turbulent``.
+    """
+
+    nusselt: float
+    friction: float
+    regime: str
+
+
+def _regime(Re, Re_crit=RE_LAMINAR):
+    return "laminar" if Re < Re_crit else "turbulent" if Re >= RE_TURBULENT else "transitional"
+
+
+def tube(Re, Pr, diameter, roughness=0.0, coil_diameter=None):
+    """Inside a tube (or a helical coil of ``coil_diameter`` [m]).
+
+    Straight tube: Gnielinski's correlation with Colebrook's friction factor above Re = 1e4,
+    Nu = 48/11 with f = 64/Re below 2300, linear in Re between (VDI Heat Atlas, G1).  Coil:
+    Mori and Nakayama above the coil's critical Reynolds number (Schmidt, ``fluids``), the
+    straight tube's laminar values below it (a coil's secondary flow raises the laminar Nusselt
+    number: taking the straight tube's errs on the safe side).
+    """
+    from fluids.friction import friction_factor
+    from ht.conv_internal import turbulent_Gnielinski
+
+    def turbulent(re):
+        fd = friction_factor(Re=re, eD=roughness / diameter, Method="Colebrook")
+        return turbulent_Gnielinski(Re=re, Pr=Pr, fd=fd), fd
+
+    if coil_diameter is not None:
+        from fluids import helical_Re_crit, helical_turbulent_fd_Mori_Nakayama
+        from ht.conv_internal import helical_turbulent_Nu_Mori_Nakayama
+
+        Re_crit = helical_Re_crit(Di=diameter, Dc=coil_diameter)
+        if Re >= Re_crit:
+            return Coefficient(helical_turbulent_Nu_Mori_Nakayama(Re=Re, Pr=Pr, Di=diameter, Dc=coil_diameter),
+                               helical_turbulent_fd_Mori_Nakayama(Re=Re, Di=diameter, Dc=coil_diameter), "turbulent")
+        return Coefficient(NU_LAMINAR_TUBE, 64.0 / Re, "laminar")
+    regime = _regime(Re)
+    if regime == "turbulent":
+        return Coefficient(*turbulent(Re), regime)
+    if regime == "laminar":
+        return Coefficient(NU_LAMINAR_TUBE, 64.0 / Re, regime)
+    gamma = (Re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
+    nu_turbulent, _ = turbulent(RE_TURBULENT)
+    fd = friction_factor(Re=Re, eD=roughness / diameter, Method="Colebrook")
+    return Coefficient((1.0 - gamma) * NU_LAMINAR_TUBE + gamma * nu_turbulent, fd, regime)
+
+
+def annulus_friction(Re, a):
+    """Darcy friction factor of a smooth concentric annulus of diameter ratio ``a`` = d_inner /
+    D_outer (Gnielinski 2009): f = (1.8 log10 Re* - 1.5)^-2 on the modified Reynolds number
+    Re* = Re [(1 + a^2) ln a + (1 - a^2)] / [(1 - a)^2 ln a]."""
+    ln_a = math.log(a)
+    re_star = Re * ((1.0 + a * a) * ln_a + (1.0 - a * a)) / ((1.0 - a) ** 2 * ln_a)
+    return (1.8 * math.log10(re_star) - 1.5) ** -2
+
+
+def annulus(Re, Pr, a, hydraulic_diameter, length=None):
+    """In the annulus, heat through the inner wall, the outer wall insulated (Gnielinski 2009;
+    VDI Heat Atlas, G2).
+
+    Turbulent (Re >= 1e4): Nu = (f/8) Re Pr / (k1 + 12.7 sqrt(f/8) (Pr^(2/3) - 1)) [1 + (d_h /
+    L)^(2/3)] F_ann with k1 = 1.07 + 900 / Re - 0.63 / (1 + 10 Pr) and F_ann = 0.75 a^-0.17.
+    Laminar (Re < 2300), developed: Nu = 3.66 + 1.2 a^-0.8, f = 64/Re times the annulus's
+    laminar factor (the exact laminar solution of a concentric annulus).  Linear in Re between.
+    The entry term needs ``length`` [m]; without it the developed value is given.
+    """
+    regime = _regime(Re)
+
+    def turbulent(re):
+        fd = annulus_friction(re, a)
+        k1 = 1.07 + 900.0 / re - 0.63 / (1.0 + 10.0 * Pr)
+        entry = 1.0 + (hydraulic_diameter / length) ** (2.0 / 3.0) if length else 1.0
+        nu = (fd / 8.0) * re * Pr / (k1 + 12.7 * math.sqrt(fd / 8.0) * (Pr ** (2.0 / 3.0) - 1.0))
+        return nu * entry * 0.75 * a ** -0.17, fd
+
+    nu_laminar = 3.66 + 1.2 * a ** -0.8
+    ln_a = math.log(a)
+    laminar_factor = (1.0 - a) ** 2 / (1.0 + a * a + (1.0 - a * a) / ln_a)
+    if regime == "turbulent":
+        return Coefficient(*turbulent(Re), regime)
+    if regime == "laminar":
+        return Coefficient(nu_laminar, 64.0 / Re * laminar_factor, regime)
+    gamma = (Re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
+    nu_turbulent, _ = turbulent(RE_TURBULENT)
+    friction = (1.0 - gamma) * 64.0 / Re * laminar_factor + gamma * annulus_friction(Re, a)
+    return Coefficient((1.0 - gamma) * nu_laminar + gamma * nu_turbulent, friction, regime)
+
+
+@dataclass(frozen=True)
+class TubeInTube:
+    """Tube-in-tube geometry: ``tubes`` inner tubes, each inside its own outer tube.
+
+    Attributes
+    ----------
+    tubes : int
+    inner_inside, inner_outside : float
+        Inner tube diameters [m].
+    outer_inside : float
+        Outer tube inner diameter [m].
+    roughness : float
+        [m]
+    coil_diameter : float or None
+        [m], for a helically wound pair.
+    """
+
+    tubes: int
+    inner_inside: float
+    inner_outside: float
+    outer_inside: float
+    roughness: float = 1.5e-6
+    coil_diameter: float = None
+
+    @property
+    def tube_area(self):
+        """Flow area inside the inner tubes [m2]."""
+        return self.tubes * math.pi * self.inner_inside ** 2 / 4.0
+
+    @property
+    def annulus_area(self):
+        """Flow area of the annuli [m2]."""
+        return self.tubes * math.pi * (self.outer_inside ** 2 - self.inner_outside ** 2) / 4.0
+
+    @property
+    def annulus_hydraulic_diameter(self):
+        """Four times the area over the wetted perimeter: D_o - d_o [m]."""
+        return self.outer_inside - self.inner_outside
+
+    @property
+    def diameter_ratio(self):
+        """a = d_o / D_i of the annulus [-]."""
+        return self.inner_outside / self.outer_inside
+
+    def conductance_per_length(self, h_tube, h_annulus, k_wall):
+        """UA per metre of exchanger [W/(m K)]: tube film, wall (cylindrical) and annulus film in
+        series, times the number of tubes.  ``h`` [W/(m2 K)], ``k_wall`` [W/(m K)]."""
+        d_i, d_o = self.inner_inside, self.inner_outside
+        resistance = (1.0 / (h_tube * math.pi * d_i) + math.log(d_o / d_i) / (2.0 * math.pi * k_wall)
+                      + 1.0 / (h_annulus * math.pi * d_o))
+        return self.tubes / resistance
