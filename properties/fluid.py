@@ -348,6 +348,28 @@ class Fluid:
 
     # -- Joule-Thomson effect ---------------------------------------------------------
 
+    def transport(self, T, p):
+        """Transport properties at temperature ``T`` [K] and pressure ``p`` [Pa], one phase:
+        (dynamic viscosity [Pa s], thermal conductivity [W/(m K)], cp [J/(kg K)], density
+        [kg/m3]), from CoolProp's transport models for the fluid.
+
+        Raises
+        ------
+        PropertyRangeError
+            Outside the equation of state, on the saturation line, or where CoolProp has no
+            transport model for the fluid.
+        """
+        asked = f"T = {_fmt_T(T)}, p = {_fmt_p(p)} (transport properties)"
+        self._check_p(p, asked)
+        self._check_T(T, p, asked)
+        self._update(CP.PT_INPUTS, p, T, asked)
+        st = self._state
+        try:
+            return st.viscosity(), st.conductivity(), st.cpmass(), st.rhomass()
+        except ValueError as err:
+            self._reset_state()
+            self._fail(asked, f"CoolProp has no transport property here ({str(err).strip()})")
+
     def jt_coefficient(self, T, p):
         """Joule-Thomson coefficient (dT/dp) at constant enthalpy [K/Pa] at ``T`` [K], ``p`` [Pa].
 

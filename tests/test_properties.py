@@ -525,3 +525,16 @@ def test_a_failed_flash_leaves_the_fluid_usable():
         pass
     assert air.state_tp(300.0, 200e5).h == before
     assert air.temperatures_ph([200e5], [before])[0] == pytest.approx(300.0, abs=1e-6)
+
+
+def test_transport_properties_of_nitrogen_and_helium():
+    # Nitrogen at 300 K and 1 bar: viscosity 17.9 uPa s, conductivity 26.0 mW/(m K), cp 1.041
+    # kJ/(kg K) (NIST Chemistry WebBook, fluid properties; from memory, to the digits given).
+    # Helium at 300 K, 1 bar: 19.9 uPa s, 155 mW/(m K) (same source, from memory).
+    from properties import get_fluid
+
+    mu, k, cp, rho = get_fluid("nitrogen").transport(300.0, 1e5)
+    assert mu == pytest.approx(17.9e-6, rel=0.01) and k == pytest.approx(0.0260, rel=0.01)
+    assert cp == pytest.approx(1041.0, rel=0.005) and rho == pytest.approx(1.123, rel=0.005)
+    mu, k, _, _ = get_fluid("helium").transport(300.0, 1e5)
+    assert mu == pytest.approx(19.9e-6, rel=0.01) and k == pytest.approx(0.155, rel=0.02)
