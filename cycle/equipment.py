@@ -341,6 +341,15 @@ class Recuperator:
         self.spec = spec
         self.key = key
         self.zones = spec.zones
+        self.geometry = self.wall = None
+        if spec.geometry is not None:
+            from cycle.heat_transfer import TubeInTube
+            from cycle.tube_exchanger import Wall
+
+            g = spec.geometry
+            self.geometry = TubeInTube(g.tubes, g.inner_inside, g.inner_outside, g.outer_inside, g.roughness,
+                                       g.coil_diameter)
+            self.wall = Wall(g.wall_conductivity, g.wall_material)
 
     def hot_outlet_pressure(self, hot_in_p):
         return hot_in_p - self.spec.high_side_pressure_drop
@@ -354,9 +363,22 @@ class Recuperator:
                    for st, flow in colds)
         return duty / most
 
-    def profile(self, fluid, hot_in, colds, duty, zones=None):
-        """Temperature profile for ``duty`` [J/kg compressed] (:class:`~cycle.processes.ExchangerProfile`)."""
+    def profile(self, fluid, hot_in, colds, duty, zones=None, flow=None):
+        """Temperature profile for ``duty`` [J/kg compressed] (:class:`~cycle.processes.ExchangerProfile`).
+
+        With a geometry, ``flow`` [kg/s] is the compressor flow, and the profile carries the
+        hardware's march (``rating``: lengths, coefficients, computed pressures).
+        """
         zones = zones or self.zones
+        if self.geometry is not None:
+            from dataclasses import replace
+
+            from cycle.tube_exchanger import rate
+
+            (cold_in, cold_flow), = colds
+            rated = rate(fluid, self.geometry, self.wall, hot_in, flow, cold_in, cold_flow * flow, duty * flow,
+                         zones, self.key)
+            return replace(rated.profile, rating=rated)
         hot_p_out = self.hot_outlet_pressure(hot_in.p)
         if len(colds) == 1:
             (cold_in, flow), = colds

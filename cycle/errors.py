@@ -5,6 +5,10 @@ class ScenarioError(ValueError):
     """An invalid scenario: unknown key, wrong unit, missing or non-physical value."""
 
 
+class PressureCollapseError(ScenarioError):
+    """A recuperator's passages so narrow for the flow that the pressure would fall to zero."""
+
+
 class NoLiquefactionError(RuntimeError):
     """The cycle as specified makes no liquid; the message says why."""
 

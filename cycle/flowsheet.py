@@ -28,8 +28,8 @@ from scipy.optimize import brentq, minimize_scalar
 
 from cycle.equipment import Aftercooler, Compressor, MakeupMixer, Recuperator, Separator, ThrottleValve
 from cycle.processes import ideal_work_of_liquefaction  # noqa: F401 (a textbook relation, re-exported)
-from cycle.errors import (NoLiquefactionError, RecycleNotConvergedWarning, ScenarioError, TemperatureCrossError,
-                          UnreachableSizingError)
+from cycle.errors import (NoLiquefactionError, PressureCollapseError, RecycleNotConvergedWarning, ScenarioError,
+                          TemperatureCrossError, UnreachableSizingError)
 from cycle.results import CycleResult, RecuperatorResult, SolveReport, StreamState
 
 # Relative tolerance of the tear variable; property flashes are good to ~1e-10 in h.
@@ -39,7 +39,7 @@ DUTY_RTOL = 1e-10
 UA_RTOL = 1e-6
 # An effectiveness of several cold streams carries the round-off of the flashes behind them
 # (about 1e-9), so its tolerance is 1e-7: far below the three or four digits a design gives.
-SIZING_TOLERANCE = {"effectiveness": 1e-7, "min_approach": 1e-6, "ua": UA_RTOL}
+SIZING_TOLERANCE = {"effectiveness": 1e-7, "min_approach": 1e-6, "ua": UA_RTOL, "length": UA_RTOL}
 # Relative size [-] of the work below which a negative exergy loss is round-off (and shown as 0).
 LOSS_ROUND_OFF = 1e-8
 # A compressor volume flow at suction: passes of the whole solve, and the change of the mass
@@ -134,6 +134,7 @@ class Section:
     colds_of: object
     T_floor: float
     calls: int = 0
+    flow_of: object = None  # duty -> compressor flow [kg/s], for a recuperator given by its geometry
 
     def __post_init__(self):
         self._profiles = {}
@@ -143,7 +144,8 @@ class Section:
         found = self._profiles.get(duty)
         if found is None:
             self.calls += 1
-            found = self.recuperator.profile(self.fluid, self.hot_in, self.colds_of(duty), duty)
+            flow = self.flow_of(duty) if self.recuperator.geometry is not None else None
+            found = self.recuperator.profile(self.fluid, self.hot_in, self.colds_of(duty), duty, flow=flow)
             if len(self._profiles) > 64:
                 self._profiles.clear()
             self._profiles[duty] = found
@@ -273,7 +275,10 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
         target, unit = spec.min_approach, "K"
 
         def residual(duty):
-            return section.profile(duty).min_approach - target
+            try:
+                return section.profile(duty).min_approach - target
+            except PressureCollapseError:  # a duty whose length the passages cannot carry: too large
+                return -target - 1e3
 
         if target <= TOUCH_APPROACH and residual(Q_hi) > -SIZING_TOLERANCE["min_approach"]:
             duty = Q_hi  # the streams touch at the largest duty
@@ -296,12 +301,15 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
                 duty, root = brentq(residual, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter,
                                     full_output=True, disp=False)
         achieved = section.profile(duty).min_approach
+    elif mode == "length":
+        target, unit = spec.geometry.length, "m"
+        duty, root, achieved = _solve_length(section, lowest_duty, Q_hi, tol, maxiter)
     else:
         target, unit = spec.ua, "W/K"
         duty, root, achieved = _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter)
 
     res = achieved - target
-    allowed = SIZING_TOLERANCE[mode] * (target if mode == "ua" else 1.0)
+    allowed = SIZING_TOLERANCE[mode] * (target if mode in ("ua", "length") else 1.0)
     profile = section.profile(duty)
     if abs(res) <= allowed:
         status = "met"
@@ -450,6 +458,54 @@ def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
     if ua_abs(b) == stand_in:  # the streams touch at b: the result is the perfect exchanger's
         return b, root, ua_abs(a)
     return a, root, ua_abs(a)
+
+
+# Duties at which a rated exchanger's length is first looked at, as fractions of the span from the
+# least duty that makes liquid to the largest the second law allows.
+LENGTH_SCAN = (0.05, 0.2, 0.4, 0.6, 0.75, 0.85, 0.92, 0.96, 0.98, 0.99, 0.995, 0.999)
+
+
+def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
+    """Duty that a tube-in-tube exchanger of the given length passes (a rated exchanger).
+
+    The length needed grows without bound as the streams close in at the largest duty; with a
+    liquid-rate target it also grows where the flow does (little liquid).  The duties of
+    :data:`LENGTH_SCAN` are marched; the design point is the first duty, from the least, at which
+    the length needed rises through the length given (the branch of least compressor flow), refined
+    by Brent's method.  Returns (duty, Brent's report or None, the length reached [m]).
+    """
+    from cycle.errors import NoLiquefactionError
+
+    key = section.recuperator.key
+    target = section.recuperator.spec.geometry.length
+
+    def needed(duty):
+        if not math.isfinite(section.flow_of(duty)):
+            return math.inf
+        try:
+            prof = section.profile(duty)
+        except PressureCollapseError:
+            return math.inf
+        if prof.min_approach <= TOUCH_APPROACH:
+            return math.inf
+        return prof.rating.length
+
+    span = Q_hi - lowest_duty
+    duties = [lowest_duty + f * span for f in LENGTH_SCAN]
+    lengths = [needed(d) for d in duties]
+    below = [k for k, L in enumerate(lengths) if L < target]
+    if not below:
+        least = min(lengths)
+        raise NoLiquefactionError(
+            f"{key}.geometry.length {target:g} m is too short for this production: the exchanger needs at least "
+            f"about {least:.4g} m at these conditions")
+    first = below[0]
+    above = next((k for k in range(first + 1, len(duties)) if lengths[k] >= target), None)
+    if above is None:  # even close to the limit the length is not used up: a near-perfect exchanger
+        return duties[-1], None, lengths[-1]
+    duty, root = brentq(lambda d: needed(d) - target, duties[above - 1], duties[above], xtol=tol, rtol=1e-14,
+                        maxiter=maxiter, full_output=True, disp=False)
+    return duty, root, needed(duty)
 
 
 def _without_round_off(losses, work):
@@ -723,7 +779,8 @@ class Liquefier:
                 f"no liquid: heat_leak {sc.heat_leak:g} W takes more than all the refrigeration this cycle can "
                 f"make at this production, even with a perfect {rec.key.replace('_', ' ')}; lower heat_leak or "
                 f"raise the production")
-        section = Section(fl, rec, hot_in, lambda d: [(vapour, 1.0 - yield_of(d))], vapour.T)
+        section = Section(fl, rec, hot_in, lambda d: [(vapour, 1.0 - yield_of(d))], vapour.T,
+                          flow_of=lambda d: flow_at(yield_of(d)))
         lowest = max(0.0, hot_in.h - vapour.h)  # below this duty no liquid (liquid-rate target)
         duty, prof, report = solve_section(section, lambda d: flow_at(yield_of(d)), lowest, xtol, maxiter)
         y = yield_of(duty)
@@ -831,6 +888,11 @@ class Liquefier:
         balance = (energy_in - energy_out) / comp_work
         if throttle_outlet.quality is None:
             warn.append("the valve outlet is not two-phase: liquid comes only from the margin of heat leak")
+        for name, rec in recuperators.items():
+            if rec.profile.rating is not None:
+                from cycle.tube_exchanger import warnings_for
+
+                warn += warnings_for(name, rec.profile.rating)
         for name, report in reports.items():
             if report.converged:
                 continue
@@ -913,9 +975,12 @@ class SimpleLindeHampson(Liquefier):
         self._check_inversion(hot_in, self.suction_pressure)
         duty, prof, report, y, eps, eps_crit, m = self._solve_cold_end(rec, hot_in, liquid, vapour, xtol, maxiter)
 
-        hp_out = fl.state_ph(rec.hot_outlet_pressure(hot_in.p), hot_in.h - duty)
+        # The pressures the march ends at: the typed-in drops, or a geometry's friction.
+        hp_out = fl.state_ph(float(prof.hot_p[0]), hot_in.h - duty)
         valve_out = self.valve.run(fl, hp_out)
-        ret = fl.state_ph(rec.cold_outlet_pressure(vapour.p), vapour.h + duty / (1.0 - y))
+        ret = fl.state_ph(float(prof.cold_p[-1]), vapour.h + duty / (1.0 - y))
+        if rec.geometry is not None:
+            self.mixer = MakeupMixer(ret.p, sc.ambient_temperature, sc.low_pressure)
         makeup, comp, hp_in, after_duty, streams, losses = self._warm_end(ret, y)
         streams += [
             ("aftercooler outlet, recuperator high-pressure inlet", hp_in, 1.0),

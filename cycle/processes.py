@@ -219,6 +219,7 @@ class ExchangerProfile:
     cold_T: np.ndarray
     hot_p: np.ndarray
     cold_p: np.ndarray
+    rating: object = None  # cycle.tube_exchanger.RatedProfile of a recuperator given by its geometry
 
     @property
     def approach(self):

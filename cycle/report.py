@@ -134,6 +134,18 @@ def summary_sections(result):
             ("UA per unit compressor flow", number(ua, "{:.0f}") if ua is not None else UA_UNBOUNDED,
              "W/K per kg/s" if ua is not None else ""),
         ]
+        if rec.profile.rating is not None:
+            rows += [
+                ("length (tube-in-tube)", number(s[f"{name}_length_m"], "{:.3f}"), "m"),
+                ("heat-transfer area (inner tubes, outside)", number(s[f"{name}_area_m2"], "{:.4f}"), "m2"),
+                ("high-pressure / return-side pressure drop",
+                 f"{number(s[f'{name}_high_side_pressure_drop_bar'], '{:.4f}')} / "
+                 f"{number(s[f'{name}_low_side_pressure_drop_bar'], '{:.4f}')}", "bar"),
+                ("least Reynolds number, high / return side",
+                 f"{number(s[f'{name}_min_reynolds_high'], '{:.0f}')} / {number(s[f'{name}_min_reynolds_low'], '{:.0f}')}",
+                 ""),
+                ("fastest gas velocity", number(s[f"{name}_max_velocity_m_per_s"], "{:.1f}"), "m/s"),
+            ]
         sections.append((name.replace("_", " ").capitalize(), rows))
     if "compressor_flow_kg_per_h" in s:
         rows = [

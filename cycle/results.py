@@ -325,6 +325,20 @@ class CycleResult:
                 f"{name}_duty_kJ_per_kg_compressed": rec.duty / 1e3,
                 f"{name}_UA_W_per_K_per_kg_per_s": _finite_or_none(rec.ua_per_flow),
             })
+        for name, rec in self.recuperators.items():
+            rating = rec.profile.rating
+            if rating is None:
+                continue
+            g = self.scenario_recuperator(name).geometry
+            out.update({
+                f"{name}_length_m": rating.length,
+                f"{name}_area_m2": rating.length * g.tubes * np.pi * g.inner_outside,
+                f"{name}_high_side_pressure_drop_bar": rating.high_side_pressure_drop / 1e5,
+                f"{name}_low_side_pressure_drop_bar": rating.low_side_pressure_drop / 1e5,
+                f"{name}_min_reynolds_high": float(np.min(rating.reynolds_high)),
+                f"{name}_min_reynolds_low": float(np.min(rating.reynolds_low)),
+                f"{name}_max_velocity_m_per_s": float(max(np.max(rating.velocity_high), np.max(rating.velocity_low))),
+            })
         recs = list(self.recuperators.values())
         if "recuperator" not in self.recuperators:  # totals over the recuperators
             out["recuperator_min_approach_K"] = min(r.min_approach for r in recs)
@@ -388,6 +402,10 @@ class CycleResult:
                 out["coolant_consumption_L_per_h"] = kg_h / self.coolant_liquid_density * 1e3
         return out
 
+    def scenario_recuperator(self, name):
+        """The scenario's spec of recuperator ``name``."""
+        return getattr(self.scenario, name)
+
     def state_rows(self):
         """One dictionary per numbered stream, in display units named in the keys."""
         rows = []
@@ -419,9 +437,26 @@ class CycleResult:
     def profile_rows(self, name=None):
         """A recuperator profile: duty from the cold end and the stream temperatures."""
         prof = (self.recuperators[name] if name else self.recuperator).profile
-        return [{"duty_kJ_per_kg_compressed": float(q) / 1e3, "high_pressure_temperature_K": float(th),
+        rows = [{"duty_kJ_per_kg_compressed": float(q) / 1e3, "high_pressure_temperature_K": float(th),
                  "low_pressure_temperature_K": float(tc)}
                 for q, th, tc in zip(prof.duty, prof.hot_T, prof.cold_T)]
+        rating = prof.rating
+        if rating is not None:
+            # Boundary values, and on each row but the first those of the zone that ends there
+            # (zone k lies between rows k - 1 and k, counted from the cold end).
+            x = rating.position
+            for k, row in enumerate(rows):
+                zone = k - 1
+                row.update({
+                    "x_m": float(x[k]),
+                    "pressure_high_bar": float(prof.hot_p[k]) / 1e5,
+                    "pressure_low_bar": float(prof.cold_p[k]) / 1e5,
+                    "h_high_W_per_m2K": float(rating.h_high[zone]) if zone >= 0 else None,
+                    "h_low_W_per_m2K": float(rating.h_low[zone]) if zone >= 0 else None,
+                    "reynolds_high": float(rating.reynolds_high[zone]) if zone >= 0 else None,
+                    "reynolds_low": float(rating.reynolds_low[zone]) if zone >= 0 else None,
+                })
+        return rows
 
     def to_dict(self):
         """Everything ``lhsim run --json`` prints."""
@@ -453,6 +488,12 @@ def summary_keys(scenario):
         keys += [f"{name}_{k}" for k in ("effectiveness", "critical_effectiveness", "min_approach_K",
                                          "min_approach_position", "warm_end_approach_K", "cold_end_approach_K",
                                          "duty_kJ_per_kg_compressed", "UA_W_per_K_per_kg_per_s")]
+    for name in names:
+        spec = getattr(scenario, name)
+        if spec is not None and spec.geometry is not None:
+            keys += [f"{name}_{k}" for k in ("length_m", "area_m2", "high_side_pressure_drop_bar",
+                                             "low_side_pressure_drop_bar", "min_reynolds_high", "min_reynolds_low",
+                                             "max_velocity_m_per_s")]
     if "recuperator" not in names:
         keys += ["recuperator_min_approach_K", "recuperator_duty_kJ_per_kg_compressed",
                  "recuperator_UA_W_per_K_per_kg_per_s"]

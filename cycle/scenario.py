@@ -17,6 +17,11 @@ from cycle.units import UnitError, parse_quantity, printable, shown
 
 DEFAULT_AMBIENT_TEMPERATURE = 300.0  # K; the reference temperature of the textbook tables
 DEFAULT_ZONES = 50
+# Absolute roughness of drawn tubing [m]: 1.5 um (common practice; the usual table value for
+# drawn copper, brass and stainless tubing).
+DEFAULT_ROUGHNESS = 1.5e-6
+# Wall materials a geometry may name (cycle.heat_transfer.WALL_MATERIALS holds their fits).
+WALL_MATERIAL_NAMES = ("stainless steel 304",)
 # Highest stage discharge temperature before lhsim warns: 150 degC, common practice for
 # lubricated reciprocating compressors (the oil and the valves set the limit).
 DEFAULT_MAX_DISCHARGE_TEMPERATURE = 423.15  # K
@@ -59,8 +64,30 @@ class AftercoolerSpec:
 
 
 @dataclass(frozen=True)
+class GeometrySpec:
+    """A tube-in-tube recuperator's hardware (SI: m, W/(m K)).
+
+    ``length`` None means the exchanger is sized (its length found for the recuperator's
+    ``min_approach`` or ``effectiveness``); given, it is rated.  One of ``wall_conductivity``
+    and ``wall_material``.
+    """
+
+    tubes: int
+    inner_inside: float
+    inner_outside: float
+    outer_inside: float
+    roughness: float = DEFAULT_ROUGHNESS
+    wall_conductivity: Optional[float] = None
+    wall_material: Optional[str] = None
+    coil_diameter: Optional[float] = None
+    length: Optional[float] = None
+    type: str = "tube-in-tube"
+
+
+@dataclass(frozen=True)
 class RecuperatorSpec:
-    """Counterflow recuperator: exactly one of effectiveness [-], min_approach [K], ua [W/K]."""
+    """Counterflow recuperator: exactly one of effectiveness [-], min_approach [K], ua [W/K], or a
+    geometry with its length (rated)."""
 
     effectiveness: Optional[float] = None
     min_approach: Optional[float] = None
@@ -68,12 +95,15 @@ class RecuperatorSpec:
     zones: int = DEFAULT_ZONES
     high_side_pressure_drop: float = 0.0
     low_side_pressure_drop: float = 0.0
+    geometry: Optional[GeometrySpec] = None
 
     @property
     def mode(self):
         for name in ("effectiveness", "min_approach", "ua"):
             if getattr(self, name) is not None:
                 return name
+        if self.geometry is not None and self.geometry.length is not None:
+            return "length"
         raise AssertionError("recuperator spec without a sizing choice")
 
 
@@ -249,6 +279,17 @@ SCHEMA = {
         "zones": "integer",
         "high_side_pressure_drop": "pressure",
         "low_side_pressure_drop": "pressure",
+        "geometry": {
+            "type": "text",
+            "tubes": "integer",
+            "inner_tube": {"inner_diameter": "length", "outer_diameter": "length"},
+            "outer_tube": {"inner_diameter": "length"},
+            "roughness": "length",
+            "wall_conductivity": "wall_conductivity",
+            "wall_material": "text",
+            "coil_diameter": "length",
+            "length": "length",
+        },
     },
     "heat_leak": "power",
     "valve": {
@@ -288,6 +329,8 @@ _EXAMPLES = {
     "temperature_difference": "'2 K'",
     "thermal_conductance": "'500 W/K'",
     "specific_energy": "'770 kJ/kg'",
+    "length": "'6 mm'",
+    "wall_conductivity": "'15 W/(m K)'",
 }
 
 
@@ -538,6 +581,16 @@ def parse_scenario(data):
                             "production.compressor_flow (the cooler's capacity is a power, W)")
     if heat_leak > 0 and production is None:
         raise ScenarioError("heat_leak needs production: give production.liquid_rate or production.compressor_flow")
+    for key, spec in (("recuperator", recuperator), ("warm_recuperator", warm), ("cold_recuperator", cold)):
+        if spec is None or spec.geometry is None:
+            continue
+        if production is None:
+            raise ScenarioError(f"{key}.geometry needs production: give production.liquid_rate or "
+                                f"production.compressor_flow (heat transfer and friction depend on the flow)")
+        if dual is not None or precooling is not None:
+            raise ScenarioError(f"{key}.geometry is taken in the simple layout only so far; give the "
+                                f"{'dual-pressure' if dual is not None else 'precooled'} layout's recuperators by "
+                                f"effectiveness, min_approach or ua")
     for key in ("recuperator", "warm_recuperator", "cold_recuperator"):
         spec = data.get(key)
         if isinstance(spec, dict) and spec.get("ua") is not None and production is None:
@@ -779,8 +832,25 @@ def _parse_recuperator(section, p_hot_in, p_low, key="recuperator"):
     if section is None:
         raise ScenarioError(f"missing {key}: expected one of {key}.effectiveness, "
                             f"{key}.min_approach or {key}.ua")
-    mode = _exactly_one(section, ["effectiveness", "min_approach", "ua"], key)
     values = {}
+    geometry = None
+    if section.get("geometry") is not None:
+        geometry = values["geometry"] = _parse_geometry(section["geometry"], f"{key}.geometry")
+        for other in ("ua", "high_side_pressure_drop", "low_side_pressure_drop"):
+            if section.get(other) is not None:
+                why = ("the geometry gives the conductance" if other == "ua"
+                       else "the geometry's friction gives the pressure drops")
+                raise ScenarioError(f"give {key}.geometry without {key}.{other} ({why})")
+    if geometry is not None and geometry.length is not None:
+        for other in ("effectiveness", "min_approach"):
+            if section.get(other) is not None:
+                raise ScenarioError(f"give {key}.geometry.length (a rated exchanger) or {key}.{other} (its length "
+                                    f"sized for it), not both")
+        mode = None
+    elif geometry is not None:
+        mode = _exactly_one(section, ["effectiveness", "min_approach"], key)
+    else:
+        mode = _exactly_one(section, ["effectiveness", "min_approach", "ua"], key)
     if mode == "effectiveness":
         eps = _number(section, "effectiveness", f"{key}.effectiveness")
         values["effectiveness"] = _between(eps, f"{key}.effectiveness", 0, 1, given=section["effectiveness"])
@@ -789,7 +859,7 @@ def _parse_recuperator(section, p_hot_in, p_low, key="recuperator"):
         if dT < 0 or dT > 200:
             raise ScenarioError(f"{key}.min_approach must be from 0 to 200 K, got {section['min_approach']!r}")
         values["min_approach"] = dT
-    else:
+    elif mode == "ua":
         ua = _quantity(section, "ua", "thermal_conductance", f"{key}.ua")
         if ua <= 0:
             raise ScenarioError(f"{key}.ua must be above 0 W/K, got {section['ua']!r}")
@@ -804,6 +874,68 @@ def _parse_recuperator(section, p_hot_in, p_low, key="recuperator"):
                                     f"got {section[side]!r}")
             values[side] = dp
     return RecuperatorSpec(**values)
+
+
+def _parse_geometry(section, key):
+    """A ``geometry`` section of a recuperator: a tube-in-tube exchanger's hardware."""
+    kind = section.get("type", "tube-in-tube")
+    if kind != "tube-in-tube":
+        raise ScenarioError(f"{key}.type must be tube-in-tube, got {shown(kind)}")
+
+    def length(data, name, full, required=True):
+        if data.get(name) is None:
+            if required:
+                raise ScenarioError(f"missing {full}: expected a length such as {_EXAMPLES['length']}")
+            return None
+        value = _quantity(data, name, "length", full)
+        if not 0 < value < 1e3:
+            raise ScenarioError(f"{full} must be above 0 and below 1000 m, got {data[name]!r}")
+        return value
+
+    inner = section.get("inner_tube") or {}
+    outer = section.get("outer_tube") or {}
+    d_i = length(inner, "inner_diameter", f"{key}.inner_tube.inner_diameter")
+    d_o = length(inner, "outer_diameter", f"{key}.inner_tube.outer_diameter")
+    D_i = length(outer, "inner_diameter", f"{key}.outer_tube.inner_diameter")
+    if not d_i < d_o:
+        raise ScenarioError(f"{key}.inner_tube.outer_diameter must be above its inner_diameter ({d_i * 1e3:g} mm), "
+                            f"got {inner['outer_diameter']!r}")
+    if not d_o < D_i:
+        raise ScenarioError(f"{key}.outer_tube.inner_diameter must be above the inner tube's outer_diameter "
+                            f"({d_o * 1e3:g} mm): the return gas needs an annulus, got {outer['inner_diameter']!r}")
+    values = {"inner_inside": d_i, "inner_outside": d_o, "outer_inside": D_i, "tubes": 1}
+    if section.get("tubes") is not None:
+        values["tubes"] = _integer(section, "tubes", f"{key}.tubes", 1, 10000)
+    rough = length(section, "roughness", f"{key}.roughness", required=False) if section.get("roughness") != 0 else 0.0
+    if rough is not None:
+        if rough >= 0.05 * d_i:
+            raise ScenarioError(f"{key}.roughness must be below 5 % of the inner tube's inner diameter, got "
+                                f"{section['roughness']!r}")
+        values["roughness"] = rough
+    walls = [name for name in ("wall_conductivity", "wall_material") if section.get(name) is not None]
+    if len(walls) != 1:
+        raise ScenarioError(f"give one of {key}.wall_conductivity or {key}.wall_material"
+                            + (", not both" if walls else ""))
+    if walls[0] == "wall_conductivity":
+        k = _quantity(section, "wall_conductivity", "wall_conductivity", f"{key}.wall_conductivity")
+        if not 0 < k <= 1e4:
+            raise ScenarioError(f"{key}.wall_conductivity must be above 0 and at most 10000 W/(m K), got "
+                                f"{section['wall_conductivity']!r}")
+        values["wall_conductivity"] = k
+    else:
+        name = str(section["wall_material"]).strip().lower()
+        if name not in WALL_MATERIAL_NAMES:
+            raise ScenarioError(f"{key}.wall_material must be one of {', '.join(WALL_MATERIAL_NAMES)}, got "
+                                f"{shown(section['wall_material'])}")
+        values["wall_material"] = name
+    coil = length(section, "coil_diameter", f"{key}.coil_diameter", required=False)
+    if coil is not None:
+        if coil <= 3 * D_i:
+            raise ScenarioError(f"{key}.coil_diameter must be more than three outer-tube diameters "
+                                f"({3 * D_i * 1e3:g} mm), got {section['coil_diameter']!r}")
+        values["coil_diameter"] = coil
+    values["length"] = length(section, "length", f"{key}.length", required=False)
+    return GeometrySpec(**values)
 
 
 def _parse_production(section):

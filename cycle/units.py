@@ -36,6 +36,8 @@ DIMENSIONS = {
     "specific_energy": ("[length] ** 2 / [time] ** 2", "joule / kilogram"),
     "dimensionless": ("", ""),
     "time_unit": ("[time]", "second"),
+    "length": ("[length]", "meter"),
+    "wall_conductivity": ("[power] / [length] / [temperature]", "watt / meter / kelvin"),
     # Volume flows of gas at a reference condition (REFERENCE_CONDITIONS), in m^3/s there.
     "normal_volume_flow": ("[length] ** 3 / [time]", "Nm^3/s"),
     "standard_volume_flow": ("[length] ** 3 / [time]", "Sm^3/s"),
@@ -352,6 +354,8 @@ _EXAMPLE = {
     "temperature_difference": "K",
     "thermal_conductance": "W/K",
     "specific_energy": "kJ/kg",
+    "length": "mm",
+    "wall_conductivity": "W/(m K)",
     "normal_volume_flow": "Nm^3/h",
     "standard_volume_flow": "Sm^3/h",
     "standard_us_volume_flow": "scfm",

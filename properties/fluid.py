@@ -351,7 +351,7 @@ class Fluid:
     def transport(self, T, p):
         """Transport properties at temperature ``T`` [K] and pressure ``p`` [Pa], one phase:
         (dynamic viscosity [Pa s], thermal conductivity [W/(m K)], cp [J/(kg K)], density
-        [kg/m3]), from CoolProp's transport models for the fluid.
+        [kg/m3], speed of sound [m/s]), from CoolProp's transport models for the fluid.
 
         Raises
         ------
@@ -365,7 +365,7 @@ class Fluid:
         self._update(CP.PT_INPUTS, p, T, asked)
         st = self._state
         try:
-            return st.viscosity(), st.conductivity(), st.cpmass(), st.rhomass()
+            return st.viscosity(), st.conductivity(), st.cpmass(), st.rhomass(), st.speed_sound()
         except ValueError as err:
             self._reset_state()
             self._fail(asked, f"CoolProp has no transport property here ({str(err).strip()})")

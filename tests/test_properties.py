@@ -533,8 +533,10 @@ def test_transport_properties_of_nitrogen_and_helium():
     # Helium at 300 K, 1 bar: 19.9 uPa s, 155 mW/(m K) (same source, from memory).
     from properties import get_fluid
 
-    mu, k, cp, rho = get_fluid("nitrogen").transport(300.0, 1e5)
+    # Speed of sound 353 m/s (same source, from memory).
+    mu, k, cp, rho, c = get_fluid("nitrogen").transport(300.0, 1e5)
+    assert c == pytest.approx(353.0, rel=0.005)
     assert mu == pytest.approx(17.9e-6, rel=0.01) and k == pytest.approx(0.0260, rel=0.01)
     assert cp == pytest.approx(1041.0, rel=0.005) and rho == pytest.approx(1.123, rel=0.005)
-    mu, k, _, _ = get_fluid("helium").transport(300.0, 1e5)
+    mu, k, _, _, _ = get_fluid("helium").transport(300.0, 1e5)
     assert mu == pytest.approx(19.9e-6, rel=0.01) and k == pytest.approx(0.155, rel=0.02)

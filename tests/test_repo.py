@@ -45,7 +45,8 @@ def test_every_scenario_key_and_summary_key_is_documented():
         if isinstance(eval_kind(SCHEMA, key), dict) or key.startswith(("warm_recuperator", "cold_recuperator")):
             continue
         assert f"`{key}`" in glossary or key == "sweep", key
-        assert f"`{key.split('.')[-1]}`" in formats, key
+        last = key.split(".")[-1]
+        assert f"`{last}`" in formats or f".{last}`" in formats, key
     for demo in sorted((ROOT / "scenarios").glob("*.yaml")):
         for key in summary_keys(load_scenario(demo)):
             generic = key
