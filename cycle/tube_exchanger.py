@@ -110,7 +110,7 @@ def _lmtd(a, b):
     return a if abs(a - b) <= 1e-12 * max(a, b) else (a - b) / math.log(a / b)
 
 
-def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zones, key="recuperator"):
+def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zones, key="recuperator", start=None):
     """March a tube-in-tube exchanger passing ``duty`` [W].
 
     Parameters
@@ -129,6 +129,9 @@ def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zone
     zones : int
     key : str
         The scenario key, for messages.
+    start : (numpy.ndarray, numpy.ndarray), optional
+        Boundary pressures of the hot and cold streams to start the pressure passes from (a
+        neighbouring duty's): fewer passes, the same answer to :data:`PRESSURE_TOLERANCE`.
 
     Returns
     -------
@@ -146,8 +149,12 @@ def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zone
     q = np.linspace(0.0, duty, n + 1)  # cumulative from the cold end [W]
     h_hot = hot_in.h - (duty - q) / hot_flow
     h_cold = cold_in.h + q / cold_flow
-    p_hot = np.full(n + 1, hot_in.p)
-    p_cold = np.full(n + 1, cold_in.p)
+    if start is not None and len(start[0]) == n + 1:
+        p_hot = hot_in.p + (np.asarray(start[0]) - start[0][-1])
+        p_cold = cold_in.p + (np.asarray(start[1]) - start[1][0])
+    else:
+        p_hot = np.full(n + 1, hot_in.p)
+        p_cold = np.full(n + 1, cold_in.p)
     G_hot = hot_flow / geometry.tube_area
     G_cold = cold_flow / geometry.annulus_area
     d_t, d_a, a = geometry.inner_inside, geometry.annulus_hydraulic_diameter, geometry.diameter_ratio
