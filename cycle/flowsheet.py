@@ -42,10 +42,10 @@ UA_RTOL = 1e-6
 SIZING_TOLERANCE = {"effectiveness": 1e-7, "min_approach": 1e-6, "ua": UA_RTOL, "length": UA_RTOL}
 # Relative size [-] of the work below which a negative exergy loss is round-off (and shown as 0).
 LOSS_ROUND_OFF = 1e-8
-# A compressor volume flow at suction: passes of the whole solve, and the change of the mass
-# flow [relative] at which they stop (the density is then met far inside the duty tolerance).
+# A compressor volume flow at suction: passes of the whole solve, and the relative miss of the
+# volume flow at which they stop.
 SUCTION_ITERATIONS = 12
-SUCTION_RTOL = 1e-11
+SUCTION_RTOL = 1e-7
 # Streams closer than this [K] touch: below the resolution of the property data, the exchanger
 # is a perfect one and its UA is reported as unbounded (null).
 TOUCH_APPROACH = 1e-6
@@ -711,9 +711,10 @@ class Liquefier:
         """Solve, with a compressor volume flow turned into its mass flow first.
 
         At reference conditions the density is fixed; at the compressor suction it depends on
-        the suction temperature, which the solve decides: the mass flow is found by successive
-        substitution, m = V rho_suction / (suction flow per kg compressed), until it changes by
-        less than :data:`SUCTION_RTOL` (the suction density barely depends on the flow).
+        the suction temperature (and, for a recuperator given by its geometry, the suction
+        pressure), which the solve decides: the mass flow is found by successive substitution,
+        m = V rho_suction / (suction flow per kg compressed), until the solve's own suction volume
+        flow meets V to :data:`SUCTION_RTOL` (the suction density barely depends on the flow).
         """
         prod = self.scenario.production
         if prod is None or prod.compressor_volume_flow is None:
@@ -727,11 +728,10 @@ class Liquefier:
             self._volume_mass_flow = m
             result = self._solve(xtol, maxiter)
             suction, flow = result.suction
-            m_next = V * suction.density / flow
-            if abs(m_next - m) <= SUCTION_RTOL * m:
+            missed = (m * flow / suction.density - V) / V  # the volume flow this solve has, against V
+            if abs(missed) <= SUCTION_RTOL:
                 return result
-            m = m_next
-        missed = (m * result.suction[1] / result.suction[0].density - V) / V
+            m = V * suction.density / flow
         result.warnings.append(
             f"production.compressor_flow: the suction volume flow reached is off by {missed:+.2e} of the "
             f"{V * 3600:g} m^3/h asked for after {SUCTION_ITERATIONS} passes (the mass flow did not settle)")

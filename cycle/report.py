@@ -23,11 +23,20 @@ def _line(label, value, unit="", fmt="{:.4g}"):
 
 
 def _mode_text(spec):
+    g = spec.geometry
+    hardware = ""
+    if g is not None:
+        hardware = (f"{g.tubes} tube-in-tube pair{'s' if g.tubes > 1 else ''}, {g.inner_inside * 1e3:g}/"
+                    f"{g.inner_outside * 1e3:g} mm in {g.outer_inside * 1e3:g} mm")
+    if spec.mode == "length":
+        return f"its geometry ({hardware}, {g.length:g} m long, rated)"
     if spec.mode == "effectiveness":
-        return f"effectiveness {spec.effectiveness:g}"
-    if spec.mode == "min_approach":
-        return f"minimum approach {spec.min_approach:g} K"
-    return f"UA {spec.ua:g} W/K"
+        text = f"effectiveness {spec.effectiveness:g}"
+    elif spec.mode == "min_approach":
+        text = f"minimum approach {spec.min_approach:g} K"
+    else:
+        text = f"UA {spec.ua:g} W/K"
+    return f"{text} ({hardware}: length found)" if g is not None else text
 
 
 def _layout_text(sc):

@@ -313,7 +313,7 @@ SCHEMA = {
     },
     "production": {
         "liquid_rate": ("mass_flow", "volume_flow") + GAS_VOLUME_FLOWS,
-        "compressor_flow": ("mass_flow", "volume_flow") + GAS_VOLUME_FLOWS,
+        "compressor_flow": ("mass_flow", "suction_volume_flow") + GAS_VOLUME_FLOWS,
     },
 }
 
@@ -326,6 +326,7 @@ _EXAMPLES = {
     "power": "'5 W'",
     "mass_flow": "'8 kg/h'",
     "volume_flow": "'10 L/h'",
+    "suction_volume_flow": "'50 m^3/h'",
     "temperature_difference": "'2 K'",
     "thermal_conductance": "'500 W/K'",
     "specific_energy": "'770 kJ/kg'",
@@ -968,7 +969,7 @@ def _parse_production(section):
         if dimension == "mass_flow":
             return ProductionSpec(compressor_flow=rate)
         return ProductionSpec(compressor_volume_flow=rate,
-                              volume_reference="suction" if dimension == "volume_flow" else dimension)
+                              volume_reference="suction" if dimension == "suction_volume_flow" else dimension)
     if dimension == "mass_flow":
         return ProductionSpec(liquid_mass_rate=rate)
     if dimension == "volume_flow":

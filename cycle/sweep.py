@@ -54,6 +54,7 @@ COLUMN_UNITS = {
     "thermal_conductance": ("W_per_K", "W/K", 1.0, 1.0),
     "specific_energy": ("kJ_per_kg", "kJ/kg", 1.0, 1e3),
     "length": ("m", "m", 1.0, 1.0),
+    "suction_volume_flow": ("m3_per_h", "m^3/h", 3600.0, 1.0),
     "wall_conductivity": ("W_per_m_K", "W/(m K)", 1.0, 1.0),
     "normal_volume_flow": ("Nm3_per_h", "Nm^3/h", 3600.0, 1.0),
     "standard_volume_flow": ("Sm3_per_h", "Sm^3/h", 3600.0, 1.0),

@@ -24,7 +24,7 @@ from cycle.processes import ExchangerProfile
 
 # The pressure iteration stops when no boundary pressure moves by more than this [Pa], or after
 # PRESSURE_PASSES passes (then the last change is reported).
-PRESSURE_TOLERANCE = 1e-3
+PRESSURE_TOLERANCE = 1e-4
 PRESSURE_PASSES = 30
 
 

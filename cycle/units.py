@@ -36,6 +36,8 @@ DIMENSIONS = {
     "specific_energy": ("[length] ** 2 / [time] ** 2", "joule / kilogram"),
     "dimensionless": ("", ""),
     "time_unit": ("[time]", "second"),
+    # An actual volume flow of gas at a compressor's suction (written as any volume flow).
+    "suction_volume_flow": ("[length] ** 3 / [time]", "meter ** 3 / second"),
     "length": ("[length]", "meter"),
     "wall_conductivity": ("[power] / [length] / [temperature]", "watt / meter / kelvin"),
     # Volume flows of gas at a reference condition (REFERENCE_CONDITIONS), in m^3/s there.
@@ -197,7 +199,7 @@ def parse_quantity(value, dimension, gauge=True):
     dim, si = DIMENSIONS[dimension]
     if not unit:
         return number
-    if dimension == "volume_flow" and (_GAS_VOLUME.match(unit) or _SCF.match(unit)):
+    if dimension in ("volume_flow", "suction_volume_flow") and (_GAS_VOLUME.match(unit) or _SCF.match(unit)):
         raise UnitError(f"expected an actual volume flow (for example in L/h or m^3/h), got {shown(value)}: a "
                         f"volume of gas at reference conditions is not taken here")
     _check_unit(unit, value)
@@ -356,6 +358,7 @@ _EXAMPLE = {
     "specific_energy": "kJ/kg",
     "length": "mm",
     "wall_conductivity": "W/(m K)",
+    "suction_volume_flow": "m^3/h",
     "normal_volume_flow": "Nm^3/h",
     "standard_volume_flow": "Sm^3/h",
     "standard_us_volume_flow": "scfm",

@@ -180,11 +180,11 @@ def test_a_suction_volume_flow_is_met_at_the_suction_state():
     result = solve(argon(production={"compressor_flow": "40 m^3/h"}))
     s = result.summary()
     suction = result.states[0].state
-    assert s["compressor_suction_volume_flow_m3_per_h"] == pytest.approx(40.0, rel=1e-9)
+    assert s["compressor_suction_volume_flow_m3_per_h"] == pytest.approx(40.0, rel=1e-7)  # SUCTION_RTOL
     assert s["compressor_flow_kg_per_h"] == pytest.approx(
-        40.0 * PropsSI("D", "T", suction.T, "P", suction.p, "Argon"), rel=1e-8)
+        40.0 * PropsSI("D", "T", suction.T, "P", suction.p, "Argon"), rel=2e-7)
     litres = solve(argon(production={"compressor_flow": "666.6666666666 L/min"})).summary()
-    assert litres["compressor_flow_kg_per_h"] == pytest.approx(s["compressor_flow_kg_per_h"], rel=1e-8)
+    assert litres["compressor_flow_kg_per_h"] == pytest.approx(s["compressor_flow_kg_per_h"], rel=2e-7)
 
 
 @pytest.mark.parametrize("flow, T, p, m3_per_h", [

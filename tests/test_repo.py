@@ -59,7 +59,8 @@ def test_every_scenario_key_and_summary_key_is_documented():
 
 _PER_RECUPERATOR = {"effectiveness", "critical_effectiveness", "min_approach_K", "min_approach_position",
                     "warm_end_approach_K", "cold_end_approach_K", "duty_kJ_per_kg_compressed",
-                    "UA_W_per_K_per_kg_per_s"}
+                    "UA_W_per_K_per_kg_per_s", "length_m", "area_m2", "high_side_pressure_drop_bar",
+                    "low_side_pressure_drop_bar", "min_reynolds_high", "min_reynolds_low", "max_velocity_m_per_s"}
 
 
 def eval_kind(schema, key):
