@@ -234,24 +234,35 @@ def ts_diagram(result):
 
 # -- exchanger profiles -------------------------------------------------------------------
 
-def profile_data(result):
-    """Per recuperator: duty axis, both temperature arrays, and the minimum approach mark."""
+def profile_data(result, against=None):
+    """Per recuperator: the x axis (cumulative duty from the cold end, or, for a recuperator given
+    by its geometry, distance from the warm end: ``against`` ``"duty"`` or ``"length"``; default
+    length where every recuperator has one), both temperature arrays, and the minimum approach mark."""
     m = result.compressor_flow
+    rated = all(rec.profile.rating is not None for rec in result.recuperators.values())
+    against = against or ("length" if rated else "duty")
+    if against == "length" and not rated:
+        raise ValueError("against='length' needs recuperators given by their geometry")
     out = {}
     for name, rec in result.recuperators.items():
         prof = rec.profile
-        duty = prof.duty * (m / 1e3 if m else 1e-3)
+        if against == "length":
+            x, label = prof.rating.position, "distance from the warm end [m]"
+        else:
+            x = prof.duty * (m / 1e3 if m else 1e-3)
+            label = f"cumulative duty from the cold end [{'kW' if m else 'kJ/kg of compressor flow'}]"
         k = prof.min_approach_index
-        out[name] = {"duty": duty, "duty_unit": "kW" if m else "kJ/kg of compressor flow",
+        out[name] = {"duty": x, "duty_unit": "kW" if m else "kJ/kg of compressor flow", "x_label": label,
                      "hot_T": prof.hot_T, "cold_T": prof.cold_T,
-                     "pinch": (float(duty[k]), float(prof.hot_T[k]), float(prof.cold_T[k]), rec.min_approach)}
+                     "pinch": (float(x[k]), float(prof.hot_T[k]), float(prof.cold_T[k]), rec.min_approach)}
     return out
 
 
-def exchanger_profiles(result):
-    """Temperature of every stream against cumulative duty, one panel per recuperator."""
+def exchanger_profiles(result, against=None):
+    """Temperature of every stream against cumulative duty (or, for a recuperator given by its
+    geometry, distance along it), one panel per recuperator (``against``: see :func:`profile_data`)."""
     plt = _pyplot()
-    data = profile_data(result)
+    data = profile_data(result, against)
     fig, axes = plt.subplots(1, len(data), figsize=(6.2 * len(data), 4.6), squeeze=False)
     cold_label = "cold composite (two return streams)" if result.scenario.layout == "dual-pressure" else "return stream"
     for ax, (name, d) in zip(axes[0], data.items()):
@@ -263,10 +274,11 @@ def exchanger_profiles(result):
         ax.annotate(f"minimum approach {dT:.2f} K", (q, 0.5 * (th + tc)), xytext=(0.97, 0.12),
                     textcoords="axes fraction", ha="right", va="bottom", fontsize=9, color=INK,
                     arrowprops=dict(arrowstyle="->", color=INK, lw=0.8))
-        ax.set_xlabel(f"cumulative duty from the cold end [{d['duty_unit']}]")
+        ax.set_xlabel(d["x_label"])
         ax.set_ylabel("temperature T [K]")
         ax.set_title(name.replace("_", " "))
-        ax.legend(loc="upper left", fontsize=8)
+        # the warm end (where a pinch usually is) is on the left when drawn against length
+        ax.legend(loc="lower left" if d["x_label"].startswith("distance") else "upper left", fontsize=8)
     fig.tight_layout()
     return fig, data
 

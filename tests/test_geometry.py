@@ -138,3 +138,15 @@ def test_a_condensing_high_pressure_stream_is_refused():
                  gas="argon", low_pressure="1.2 bar")
     with pytest.raises(ScenarioError, match="would condense in zone"):
         solve_scenario(parse_scenario(data))
+
+
+def test_the_profile_figure_is_drawn_against_length(sized):
+    from cycle import plots
+
+    fig, data = plots.exchanger_profiles(sized)
+    d = data["recuperator"]
+    assert d["x_label"] == "distance from the warm end [m]"
+    assert d["duty"][0] == pytest.approx(sized.summary()["recuperator_length_m"]) and d["duty"][-1] == 0.0
+    assert fig.axes[0].get_xlabel() == "distance from the warm end [m]"
+    _, by_duty = plots.exchanger_profiles(sized, against="duty")
+    assert by_duty["recuperator"]["x_label"].startswith("cumulative duty from the cold end")
