@@ -13,6 +13,10 @@ from cycle.processes import carnot_cop, refrigeration_exergy
 COOLER_SCAN = 9
 COOLER_XTOL = 1e-7
 COOLER_BALANCE_RTOL = 1e-6
+# A warm recuperator given by its geometry: passes of the two sections until the pressure
+# between them settles [Pa].
+MID_PRESSURE_PASSES = 20
+MID_PRESSURE_TOLERANCE = 1e-3
 
 
 class PrecooledLindeHampson(Liquefier):
@@ -164,18 +168,28 @@ class PrecooledLindeHampson(Liquefier):
         warm, cold = self.warm, self.cold
         hp_in, liquid, vapour = self._fixed_states(self.suction_pressure)
         self._check_precooling(vapour)
+        # The pressure between the recuperators: the warm one's high-pressure outlet.  With a
+        # geometry it follows from the warm recuperator's friction, which is solved after the cold
+        # one (the precooler fixes the cold one's hot inlet): passes until it settles.
         p_mid_hot = warm.hot_outlet_pressure(hp_in.p)
-        cold_in = self._keyed_state("precooling.temperature", sc.precooling.temperature, p_mid_hot)
-        p_mid_cold = cold.cold_outlet_pressure(vapour.p)
-        self._check_inversion(cold_in, p_mid_cold, precooled=True)
-        # Cold section first: the precooler fixes its hot inlet.
-        duty_c, prof_c, report_c, y, eps_c, eps_crit, m = self._solve_cold_end(cold, cold_in, liquid, vapour,
-                                                                              xtol, maxiter)
-        mid_return = fl.state_ph(p_mid_cold, vapour.h + duty_c / (1.0 - y))
+        for _ in range(MID_PRESSURE_PASSES):
+            cold_in = self._keyed_state("precooling.temperature", sc.precooling.temperature, p_mid_hot)
+            self._check_inversion(cold_in, cold.cold_outlet_pressure(vapour.p), precooled=True)
+            # Cold section first: the precooler fixes its hot inlet.
+            duty_c, prof_c, report_c, y, eps_c, eps_crit, m = self._solve_cold_end(cold, cold_in, liquid, vapour,
+                                                                                  xtol, maxiter)
+            p_mid_cold = float(prof_c.cold_p[-1])
+            mid_return = fl.state_ph(p_mid_cold, vapour.h + duty_c / (1.0 - y))
 
-        # Warm section: both flows are known now.
-        warm_section = Section(fl, warm, hp_in, lambda d: [(mid_return, 1.0 - y)], mid_return.T)
-        duty_w, prof_w, report_w = solve_section(warm_section, lambda d: m, 0.0, xtol, maxiter)
+            # Warm section: both flows are known now.
+            warm_section = Section(fl, warm, hp_in, lambda d: [(mid_return, 1.0 - y)], mid_return.T,
+                                   flow_of=lambda d: m)
+            duty_w, prof_w, report_w = solve_section(warm_section, lambda d: m, 0.0, xtol, maxiter)
+            settled = float(prof_w.hot_p[0])
+            if warm.geometry is None or abs(settled - p_mid_hot) <= MID_PRESSURE_TOLERANCE:
+                p_mid_hot = settled
+                break
+            p_mid_hot = settled
         eps_w = warm_section.effectiveness(duty_w)
         warm_out = fl.state_ph(p_mid_hot, hp_in.h - duty_w)
         if warm_out.h < cold_in.h:
@@ -186,9 +200,11 @@ class PrecooledLindeHampson(Liquefier):
         _, precooler_duty = self.precooler.run(fl, warm_out)
         supply = self.precooler.supply(precooler_duty, m)
 
-        cold_out = fl.state_ph(cold.hot_outlet_pressure(cold_in.p), cold_in.h - duty_c)
+        cold_out = fl.state_ph(float(prof_c.hot_p[0]), cold_in.h - duty_c)
         valve_out = self.valve.run(fl, cold_out)
-        ret = fl.state_ph(warm.cold_outlet_pressure(mid_return.p), mid_return.h + duty_w / (1.0 - y))
+        ret = fl.state_ph(float(prof_w.cold_p[-1]), mid_return.h + duty_w / (1.0 - y))
+        if warm.geometry is not None or cold.geometry is not None:
+            self.mixer = MakeupMixer(ret.p, sc.ambient_temperature, sc.low_pressure)
         makeup, comp, hp_in, after_duty, streams, losses = self._warm_end(ret, y)
         streams += [
             ("aftercooler outlet, warm recuperator high-pressure inlet", hp_in, 1.0),

@@ -588,10 +588,9 @@ def parse_scenario(data):
         if production is None:
             raise ScenarioError(f"{key}.geometry needs production: give production.liquid_rate or "
                                 f"production.compressor_flow (heat transfer and friction depend on the flow)")
-        if dual is not None or precooling is not None:
-            raise ScenarioError(f"{key}.geometry is taken in the simple layout only so far; give the "
-                                f"{'dual-pressure' if dual is not None else 'precooled'} layout's recuperators by "
-                                f"effectiveness, min_approach or ua")
+        if dual is not None:
+            raise ScenarioError(f"{key}.geometry is not taken in the dual-pressure layout (its recuperator is a "
+                                f"three-stream exchanger); give it by effectiveness, min_approach or ua")
     for key in ("recuperator", "warm_recuperator", "cold_recuperator"):
         spec = data.get(key)
         if isinstance(spec, dict) and spec.get("ua") is not None and production is None:

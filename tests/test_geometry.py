@@ -123,14 +123,42 @@ def test_bad_geometry_gets_one_line(change, fragment):
     assert fragment in str(info.value) and "\n" not in str(info.value)
 
 
-def test_geometry_needs_a_flow_and_the_simple_layout():
+def test_geometry_needs_a_flow_and_no_three_stream_exchanger():
     data = bench()
     del data["production"]
     with pytest.raises(ScenarioError, match="recuperator.geometry needs production"):
         parse_scenario(data)
-    data = bench(precooling={"temperature": "150 K", "refrigerator_cop": 0.5})
-    with pytest.raises(ScenarioError, match="is taken in the simple layout only so far"):
+    data = bench(dual_pressure={"intermediate_pressure": "40 bar", "recirculated_fraction": 0.5})
+    with pytest.raises(ScenarioError, match="recuperator.geometry is not taken in the dual-pressure layout"):
         parse_scenario(data)
+
+
+def test_precooled_size_then_rate_with_both_recuperators_as_hardware():
+    G = {"tubes": 6, "inner_tube": {"inner_diameter": "6 mm", "outer_diameter": "8 mm"},
+         "outer_tube": {"inner_diameter": "22 mm"}, "wall_material": "stainless steel 304"}
+    data = bench(precooling={"temperature": "220 K", "refrigerator_carnot_fraction": 0.5},
+                 warm_recuperator={"min_approach": "4 K", "zones": 20, "geometry": G},
+                 cold_recuperator={"min_approach": "3 K", "zones": 20, "geometry": G},
+                 production={"compressor_flow": "150 kg/h"})
+    del data["recuperator"]
+    sized = solve_scenario(parse_scenario(data))
+    s = sized.summary()
+    assert sized.solve.converged and list(s) == summary_keys(sized.scenario)
+    by_name = {st.name: st.state for st in sized.states}
+    # the pressure between the recuperators is the warm one's computed outlet; the suction what
+    # both return sides leave
+    warm_p = sized.recuperators["warm_recuperator"].profile.hot_p
+    assert by_name["precooler outlet, cold recuperator high-pressure inlet"].p == pytest.approx(warm_p[0], abs=1e-2)
+    drop = s["warm_recuperator_low_side_pressure_drop_bar"] + s["cold_recuperator_low_side_pressure_drop_bar"]
+    assert by_name["compressor suction"].p == pytest.approx(1.05e5 - drop * 1e5, rel=1e-9)
+    rated = copy.deepcopy(data)
+    for name in ("warm_recuperator", "cold_recuperator"):
+        del rated[name]["min_approach"]
+        rated[name]["geometry"] = dict(G, length=f"{s[name + '_length_m']!r} m")
+    again = solve_scenario(parse_scenario(rated))
+    assert again.recuperators["warm_recuperator"].min_approach == pytest.approx(4.0, abs=0.01)
+    assert again.recuperators["cold_recuperator"].min_approach == pytest.approx(3.0, abs=0.01)
+    assert again.liquid_yield == pytest.approx(sized.liquid_yield, rel=1e-6)
 
 
 def test_a_condensing_high_pressure_stream_is_refused():
