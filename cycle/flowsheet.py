@@ -491,11 +491,15 @@ def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
         return prof.rating.length
 
     span = Q_hi - lowest_duty
-    duties = [lowest_duty + f * span for f in LENGTH_SCAN]
+    duties = [lowest_duty] + [lowest_duty + f * span for f in LENGTH_SCAN]
     lengths = [needed(d) for d in duties]
     below = [k for k, L in enumerate(lengths) if L < target]
     if not below:
         least = min(lengths)
+        if not math.isfinite(least):
+            raise ScenarioError(
+                f"{key}.geometry: the passages cannot carry this flow at any duty (a pressure would fall below 5 % "
+                f"of its inlet value along the exchanger): use wider or more tubes")
         raise NoLiquefactionError(
             f"{key}.geometry.length {target:g} m is too short for this production: the exchanger needs at least "
             f"about {least:.4g} m at these conditions")

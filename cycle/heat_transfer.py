@@ -19,7 +19,9 @@ References
   laminar value 3.66 + 1.2 a^-0.8); the linear interpolation between Re = 2300 and 1e4 in the
   transition region (*VDI Heat Atlas*, G1).  Equations and constants from memory.
 - C. F. Colebrook, *J. Inst. Civil Eng.* 11 (1939) 133-156: the Darcy friction factor of a
-  rough tube (``fluids.friction.friction_factor``, method ``Colebrook``).
+  rough tube, solved to machine precision by D. Clamond's explicit method (*Ind. Eng. Chem.
+  Res.* 48 (2009) 3665-3671; ``fluids.friction.friction_factor``, method ``Clamond``), which,
+  unlike the Lambert-W form, does not overflow at very large Reynolds numbers.
 - Y. Mori and W. Nakayama, *Int. J. Heat Mass Transfer* 10 (1967) 681-695: turbulent flow in a
   helical coil (``ht.conv_internal.helical_turbulent_Nu_Mori_Nakayama``, ``fluids.
   helical_turbulent_fd_Mori_Nakayama``); the coil's critical Reynolds number by
@@ -96,7 +98,7 @@ def tube(Re, Pr, diameter, roughness=0.0, coil_diameter=None):
     from ht.conv_internal import turbulent_Gnielinski
 
     def turbulent(re):
-        fd = friction_factor(Re=re, eD=roughness / diameter, Method="Colebrook")
+        fd = friction_factor(Re=re, eD=roughness / diameter, Method="Clamond")
         return turbulent_Gnielinski(Re=re, Pr=Pr, fd=fd), fd
 
     if coil_diameter is not None:
@@ -115,7 +117,7 @@ def tube(Re, Pr, diameter, roughness=0.0, coil_diameter=None):
         return Coefficient(NU_LAMINAR_TUBE, 64.0 / Re, regime)
     gamma = (Re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
     nu_turbulent, _ = turbulent(RE_TURBULENT)
-    fd = friction_factor(Re=Re, eD=roughness / diameter, Method="Colebrook")
+    fd = friction_factor(Re=Re, eD=roughness / diameter, Method="Clamond")
     return Coefficient((1.0 - gamma) * NU_LAMINAR_TUBE + gamma * nu_turbulent, fd, regime)
 
 
