@@ -490,6 +490,30 @@ def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
             return math.inf
         return prof.rating.length
 
+    if section.flow_of(0.0) == section.flow_of(Q_hi):
+        # A fixed flow: the length needed rises with the duty.  First guess from the
+        # effectiveness-NTU relation with the conductance per metre of one march, then an outward
+        # bracket and Brent's method (about a third of the marches of the scan below).
+        try:
+            d0 = brentq(lambda d: section.effectiveness(d) - 0.9, lowest_duty, Q_hi, xtol=1e-6 * Q_hi)
+        except ValueError:
+            d0 = 0.5 * (lowest_duty + Q_hi)
+        L0 = needed(d0)
+        if math.isfinite(L0) and L0 > 0:
+            per_metre = section.profile(d0).rating.ua / L0
+            guess = section.duty_from_ntu(per_metre * target, section.flow_of(d0), Q_hi)
+            guess = min(max(guess, lowest_duty), Q_hi)
+
+            def excess(d):
+                return needed(d) - target
+
+            lo, hi = _bracket(excess, guess, lowest_duty, Q_hi, decreasing=False)
+            if lo == hi:
+                return lo, None, needed(lo)
+            if excess(lo) < 0 <= excess(hi):
+                duty, root = brentq(excess, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter, full_output=True,
+                                    disp=False)
+                return duty, root, needed(duty)
     span = Q_hi - lowest_duty
     duties = [lowest_duty] + [lowest_duty + f * span for f in LENGTH_SCAN]
     lengths = [needed(d) for d in duties]
