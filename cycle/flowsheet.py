@@ -474,8 +474,6 @@ def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
     the length needed rises through the length given (the branch of least compressor flow), refined
     by Brent's method.  Returns (duty, Brent's report or None, the length reached [m]).
     """
-    from cycle.errors import NoLiquefactionError
-
     key = section.recuperator.key
     target = section.recuperator.spec.geometry.length
 
