@@ -13,6 +13,7 @@ import re
 from typing import Optional
 
 from cycle.errors import ScenarioError
+from cycle.heat_transfer import WALL_MATERIALS
 from cycle.units import UnitError, parse_quantity, printable, shown
 
 DEFAULT_AMBIENT_TEMPERATURE = 300.0  # K; the reference temperature of the textbook tables
@@ -20,8 +21,8 @@ DEFAULT_ZONES = 50
 # Absolute roughness of drawn tubing [m]: 1.5 um (common practice; the usual table value for
 # drawn copper, brass and stainless tubing).
 DEFAULT_ROUGHNESS = 1.5e-6
-# Wall materials a geometry may name (cycle.heat_transfer.WALL_MATERIALS holds their fits).
-WALL_MATERIAL_NAMES = ("stainless steel 304",)
+# Wall materials a geometry may name: the keys of cycle.heat_transfer.WALL_MATERIALS (their fits).
+WALL_MATERIAL_NAMES = tuple(WALL_MATERIALS)
 # Highest stage discharge temperature before lhsim warns: 150 degC, common practice for
 # lubricated reciprocating compressors (the oil and the valves set the limit).
 DEFAULT_MAX_DISCHARGE_TEMPERATURE = 423.15  # K
@@ -923,8 +924,9 @@ def _parse_geometry(section, key):
                                 f"{section['wall_conductivity']!r}")
         values["wall_conductivity"] = k
     else:
-        name = str(section["wall_material"]).strip().lower()
-        if name not in WALL_MATERIAL_NAMES:
+        given = " ".join(str(section["wall_material"]).lower().split())
+        name = next((n for n in WALL_MATERIAL_NAMES if n.lower() == given), None)
+        if name is None:
             raise ScenarioError(f"{key}.wall_material must be one of {', '.join(WALL_MATERIAL_NAMES)}, got "
                                 f"{shown(section['wall_material'])}")
         values["wall_material"] = name
