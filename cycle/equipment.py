@@ -350,7 +350,7 @@ class Recuperator:
             self.geometry = TubeInTube(g.tubes, g.inner_inside, g.inner_outside, g.outer_inside, g.roughness,
                                        g.coil_diameter)
             self.wall = Wall(g.wall_conductivity, g.wall_material)
-        self._last_pressures = None  # the last march's boundary pressures: the next one starts there
+        self._last_rating = None  # the last rated march: the next duty's starts from an estimate around it
 
     def hot_outlet_pressure(self, hot_in_p):
         return hot_in_p - self.spec.high_side_pressure_drop
@@ -378,9 +378,9 @@ class Recuperator:
 
             (cold_in, cold_flow), = colds
             rated = rate(fluid, self.geometry, self.wall, hot_in, flow, cold_in, cold_flow * flow, duty * flow,
-                         zones, self.key, start=self._last_pressures)
+                         zones, self.key, start=self._last_rating)
             if duty > 0 and math.isfinite(rated.length):
-                self._last_pressures = (rated.profile.hot_p, rated.profile.cold_p)
+                self._last_rating = rated
             return replace(rated.profile, rating=rated)
         hot_p_out = self.hot_outlet_pressure(hot_in.p)
         if len(colds) == 1:

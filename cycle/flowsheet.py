@@ -303,7 +303,7 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
         achieved = section.profile(duty).min_approach
     elif mode == "length":
         target, unit = spec.geometry.length, "m"
-        duty, root, achieved = _solve_length(section, lowest_duty, Q_hi, tol, maxiter)
+        duty, root, achieved, tol = _solve_length(section, lowest_duty, Q_hi, tol, maxiter)
     else:
         target, unit = spec.ua, "W/K"
         duty, root, achieved = _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter)
@@ -359,14 +359,15 @@ def _limit_message(key, mode, target, achieved, res, profile, unit):
             f"result is that of the perfect exchanger")
 
 
-def _bracket(f, guess, lo, hi, decreasing):
+def _bracket(f, guess, lo, hi, decreasing, step=None):
     """A bracket [a, b] of a root of the monotone ``f`` between ``lo`` and ``hi``, searched
-    outwards from ``guess`` in steps that double (each evaluation is a march)."""
+    outwards from ``guess`` in steps that double from ``step`` (default 1 % of the span; each
+    evaluation is a march)."""
     f0 = f(guess)
     if f0 == 0.0:
         return guess, guess
     up = (f0 > 0) == decreasing  # the root lies above the guess
-    step = 0.01 * (hi - lo)
+    step = 0.01 * (hi - lo) if step is None else step
     a = guess
     while True:
         b = min(hi, a + step) if up else max(lo, a - step)
@@ -472,7 +473,8 @@ def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
     liquid-rate target it also grows where the flow does (little liquid).  The duties of
     :data:`LENGTH_SCAN` are marched; the design point is the first duty, from the least, at which
     the length needed rises through the length given (the branch of least compressor flow), refined
-    by Brent's method.  Returns (duty, Brent's report or None, the length reached [m]).
+    by Brent's method.  Returns (duty, Brent's report or None, the length reached [m], the
+    tolerance on the duty the root-finder worked to).
     """
     key = section.recuperator.key
     target = section.recuperator.spec.geometry.length
@@ -489,29 +491,46 @@ def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
         return prof.rating.length
 
     if section.flow_of(0.0) == section.flow_of(Q_hi):
-        # A fixed flow: the length needed rises with the duty.  First guess from the
-        # effectiveness-NTU relation with the conductance per metre of one march, then an outward
-        # bracket and Brent's method (about a third of the marches of the scan below).
+        # A fixed flow: the length needed rises with the duty, without bound as the streams close
+        # in, so its inverse falls nearly linearly to zero there.  First guess from the
+        # effectiveness-NTU relation with the conductance per metre of one march; a secant step
+        # on 1/length from the two; a bracket around that; Brent's method on 1/length, stopped
+        # when the duty is known well enough that the length is met to a tenth of its tolerance.
         try:
             d0 = brentq(lambda d: section.effectiveness(d) - 0.9, lowest_duty, Q_hi, xtol=1e-6 * Q_hi)
         except ValueError:
             d0 = 0.5 * (lowest_duty + Q_hi)
         L0 = needed(d0)
         if math.isfinite(L0) and L0 > 0:
+            def gap(d):  # 1/length needed - 1/length given [1/m]: rises as the duty falls
+                return 1.0 / needed(d) - 1.0 / target
+
             per_metre = section.profile(d0).rating.ua / L0
             guess = section.duty_from_ntu(per_metre * target, section.flow_of(d0), Q_hi)
             guess = min(max(guess, lowest_duty), Q_hi)
-
-            def excess(d):
-                return needed(d) - target
-
-            lo, hi = _bracket(excess, guess, lowest_duty, Q_hi, decreasing=False)
-            if lo == hi:
-                return lo, None, needed(lo)
-            if excess(lo) < 0 <= excess(hi):
-                duty, root = brentq(excess, lo, hi, xtol=tol, rtol=1e-14, maxiter=maxiter, full_output=True,
-                                    disp=False)
-                return duty, root, needed(duty)
+            g0, g1 = gap(d0), gap(guess)
+            slope = (g1 - g0) / (guess - d0) if guess != d0 and g1 != g0 else -abs(g0) / (Q_hi - lowest_duty)
+            if slope < 0 and math.isfinite(needed(guess)):
+                step = -g1 / slope
+                estimate = min(max(guess + step, lowest_duty), Q_hi)
+                # The duty tolerance that meets the length to a tenth of its own: |dL/dQ| = L^2 |d(1/L)/dQ|.
+                xtol = max(0.1 * SIZING_TOLERANCE["length"] / (target * abs(slope)), 4e-16 * Q_hi)
+                if abs(gap(estimate)) * target * target <= 0.1 * SIZING_TOLERANCE["length"] * target:
+                    return estimate, None, needed(estimate), xtol
+                seen = (d0, guess, estimate)
+                below = [d for d in seen if gap(d) > 0]  # duties too small for the length
+                above = [d for d in seen if gap(d) <= 0]
+                if below and above:
+                    lo, hi = max(below), min(above)
+                else:
+                    lo, hi = _bracket(lambda d: -gap(d), estimate, lowest_duty, Q_hi, decreasing=False,
+                                      step=max(2.0 * abs(gap(estimate) / slope), 10.0 * xtol))
+                if lo == hi:
+                    return lo, None, needed(lo), xtol
+                if gap(lo) > 0 >= gap(hi):
+                    duty, root = brentq(gap, lo, hi, xtol=xtol, rtol=1e-14, maxiter=maxiter, full_output=True,
+                                        disp=False)
+                    return duty, root, needed(duty), xtol
     span = Q_hi - lowest_duty
     duties = [lowest_duty] + [lowest_duty + f * span for f in LENGTH_SCAN]
     lengths = [needed(d) for d in duties]
@@ -528,10 +547,10 @@ def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
     first = below[0]
     above = next((k for k in range(first + 1, len(duties)) if lengths[k] >= target), None)
     if above is None:  # even close to the limit the length is not used up: a near-perfect exchanger
-        return duties[-1], None, lengths[-1]
+        return duties[-1], None, lengths[-1], tol
     duty, root = brentq(lambda d: needed(d) - target, duties[above - 1], duties[above], xtol=tol, rtol=1e-14,
                         maxiter=maxiter, full_output=True, disp=False)
-    return duty, root, needed(duty)
+    return duty, root, needed(duty), tol
 
 
 def _without_round_off(losses, work):

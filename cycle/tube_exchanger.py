@@ -6,15 +6,14 @@ each zone gets, from CoolProp's transport properties of each stream at the zone'
 Reynolds and Prandtl numbers, the two film coefficients, the wall's resistance, the conductance
 per metre and so the zone's length (its duty over conductance per metre times its log-mean
 temperature difference), and each stream's pressure drop over that length (friction and
-acceleration).  The pressures are marched again with those drops (the high-pressure stream from
-the warm end, the return gas from the cold end) until they settle; the temperatures follow.
+acceleration).  The pressures those drops give are settled on a linear model of the march (no
+property call) and checked by marching again (see :func:`rate`).
 
 The high-pressure stream must stay one phase (a supercritical or superheated gas, or a
 compressed liquid): a condensing zone is refused, since no condensation correlation is used.
 """
 
-from dataclasses import dataclass
-import math
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -22,9 +21,10 @@ from cycle import heat_transfer as hx
 from cycle.errors import PressureCollapseError, ScenarioError
 from cycle.processes import ExchangerProfile
 
-# The pressure iteration stops when no boundary pressure moves by more than this [Pa], or after
-# PRESSURE_PASSES passes (then the last change is reported).
-PRESSURE_TOLERANCE = 1e-4
+# The pressures are settled when a march's boundary pressures come back within this share of each
+# stream's inlet pressure (0.01 Pa at 1 bar, 2 Pa at 200 bar: the temperatures then move by less
+# than 1e-7 K), or after PRESSURE_PASSES marches (then the last change stands).
+PRESSURE_RTOL = 1e-7
 PRESSURE_PASSES = 30
 
 
@@ -37,7 +37,10 @@ class Wall:
     material: str = None
 
     def at(self, T):
-        return self.conductivity if self.conductivity is not None else hx.wall_conductivity(self.material, T)
+        """Conductivity [W/(m K)] at ``T`` [K] (a number or an array)."""
+        if self.conductivity is not None:
+            return self.conductivity + 0.0 * np.asarray(T, dtype=float) if np.ndim(T) else self.conductivity
+        return hx.wall_conductivity(self.material, T)
 
 
 @dataclass(frozen=True)
@@ -61,7 +64,9 @@ class RatedProfile:
     conductance : numpy.ndarray
         UA of each zone [W/K].
     passes : int
-        Pressure passes made.
+        Marches made.
+    base : object
+        The last march, for the next duty's rating to start from (not part of the result).
     """
 
     profile: ExchangerProfile
@@ -78,6 +83,7 @@ class RatedProfile:
     regime_low: tuple
     conductance: np.ndarray
     passes: int
+    base: object = field(default=None, repr=False, compare=False)
 
     @property
     def length(self):
@@ -105,9 +111,40 @@ class RatedProfile:
 
 
 def _lmtd(a, b):
-    if a <= 0 or b <= 0:
-        return 0.0
-    return a if abs(a - b) <= 1e-12 * max(a, b) else (a - b) / math.log(a / b)
+    """Log-mean of the end differences ``a`` and ``b`` (arrays) [K]; 0 where either is not
+    positive (the streams touch or cross)."""
+    a, b = np.asarray(a, dtype=float), np.asarray(b, dtype=float)
+    ok = (a > 0) & (b > 0)
+    a_, b_ = np.where(ok, a, 1.0), np.where(ok, b, 1.0)
+    close = np.abs(a_ - b_) <= 1e-6 * np.maximum(a_, b_)
+    ratio = np.where(close, 2.0, a_ / b_)
+    # Near equal ends the series 1 - x/2 + x^2/3 of ln(1+x)/x keeps the full precision.
+    x = a_ / b_ - 1.0
+    mean = np.where(close, b_ / (1.0 - x / 2.0 + x * x / 3.0), (a_ - b_) / np.log(ratio))
+    return np.where(ok, mean, 0.0)
+
+
+@dataclass(frozen=True)
+class _Pass:
+    """One march of both streams at given boundary pressures, with all a zone needs and what the
+    pressures come to from it (``new_hot``, ``new_cold``).  Kept so the next pass, or the next
+    duty's first pass, can start from a linear estimate around it."""
+
+    h_hot: np.ndarray
+    h_cold: np.ndarray
+    p_hot: np.ndarray
+    p_cold: np.ndarray
+    hot: object   # properties.march.Marched
+    cold: object
+    per_metre: np.ndarray      # conductance per metre of each zone [W/(m K)]
+    friction_hot: np.ndarray   # f G^2 / (2 d): friction pressure drop per metre per specific volume
+    friction_cold: np.ndarray
+    lengths: np.ndarray
+    new_hot: np.ndarray
+    new_cold: np.ndarray
+    inlets: tuple              # (hot p, hot h, cold p, cold h) it was made for
+    G: tuple                   # mass fluxes of the hot and cold streams [kg/(m2 s)]
+    details: tuple             # h_i, h_o, re_i, re_o, v_i, v_o, ma_i, ma_o, regimes, conductance
 
 
 def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zones, key="recuperator", start=None):
@@ -129,9 +166,10 @@ def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zone
     zones : int
     key : str
         The scenario key, for messages.
-    start : (numpy.ndarray, numpy.ndarray), optional
-        Boundary pressures of the hot and cold streams to start the pressure passes from (a
-        neighbouring duty's): fewer passes, the same answer to :data:`PRESSURE_TOLERANCE`.
+    start : RatedProfile, optional
+        A neighbouring duty's rating (same inlet states): the pressures of the first march
+        come from a linear estimate around it.  Fewer marches, the same answer to
+        :data:`PRESSURE_RTOL`.
 
     Returns
     -------
@@ -142,88 +180,161 @@ def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zone
     ScenarioError
         Where the high-pressure stream would condense in a zone, or a pressure falls to zero
         (the tubes are far too small for the flow).
-    """
-    from properties import PropertyRangeError
 
+    Notes
+    -----
+    Each march (a "pass") solves both streams' states at the current boundary pressures, takes
+    each zone's transport properties at its mean temperature and mean density, and from the
+    correlations the zone's length and pressure drop, which give new boundary pressures.  Between
+    marches the pressures are iterated on a linear model of the last march (its states'
+    sensitivities to p and h, its conductances and friction frozen), which costs no property call;
+    the next march checks the result.  The answer is accepted when a march's own pressures come
+    back within :data:`PRESSURE_RTOL` of its inlet pressures.
+    """
     n = zones
     q = np.linspace(0.0, duty, n + 1)  # cumulative from the cold end [W]
     h_hot = hot_in.h - (duty - q) / hot_flow
     h_cold = cold_in.h + q / cold_flow
-    if start is not None and len(start[0]) == n + 1:
-        p_hot = hot_in.p + (np.asarray(start[0]) - start[0][-1])
-        p_cold = cold_in.p + (np.asarray(start[1]) - start[1][0])
+    inlets = (hot_in.p, hot_in.h, cold_in.p, cold_in.h)
+    G = (hot_flow / geometry.tube_area, cold_flow / geometry.annulus_area)
+    base = start.base if start is not None and getattr(start, "base", None) is not None else None
+    guesses = None
+    if base is not None and base.inlets == inlets and len(base.h_hot) == n + 1:
+        p_hot, p_cold, guesses = _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in)
     else:
-        p_hot = np.full(n + 1, hot_in.p)
-        p_cold = np.full(n + 1, cold_in.p)
-    G_hot = hot_flow / geometry.tube_area
-    G_cold = cold_flow / geometry.annulus_area
-    d_t, d_a, a = geometry.inner_inside, geometry.annulus_hydraulic_diameter, geometry.diameter_ratio
+        p_hot, p_cold = np.full(n + 1, float(hot_in.p)), np.full(n + 1, float(cold_in.p))
     for passes in range(1, PRESSURE_PASSES + 1):
-        try:
-            T_hot = fluid.temperatures_ph(p_hot, h_hot)
-            T_cold = fluid.temperatures_ph(p_cold, h_cold)
-        except PropertyRangeError as err:
-            raise ScenarioError(f"{key}.geometry: {err}") from None
-        T_cold[0] = cold_in.T
-        lengths, conductance = np.empty(n), np.empty(n)
-        h_i, h_o, re_i, re_o, v_i, v_o, ma_i, ma_o, vol_h, vol_c = (np.empty(n) for _ in range(10))
-        reg_i, reg_o = [], []
-        dp_hot, dp_cold = np.empty(n), np.empty(n)
-        for k in range(n):
-            Th, Tc = 0.5 * (T_hot[k] + T_hot[k + 1]), 0.5 * (T_cold[k] + T_cold[k + 1])
-            ph, pc = 0.5 * (p_hot[k] + p_hot[k + 1]), 0.5 * (p_cold[k] + p_cold[k + 1])
-            try:
-                if ph < fluid.p_critical and _two_phase(fluid, ph, h_hot[k], h_hot[k + 1]):
-                    raise PropertyRangeError("two-phase")
-                mu_h, k_h, cp_h, rho_h, a_h = fluid.transport(Th, ph)
-            except PropertyRangeError:
-                raise ScenarioError(
-                    f"{key}.geometry: the high-pressure stream would condense in zone {k + 1} of {n} (at "
-                    f"{ph / 1e5:.4g} bar, {Th:.2f} K): no condensation correlation is used; raise high_pressure "
-                    f"above the critical pressure or give the recuperator by ua") from None
-            try:
-                mu_c, k_c, cp_c, rho_c, a_c = fluid.transport(Tc, pc)
-            except PropertyRangeError:  # the return gas at its dew point: a hair into the vapour
-                mu_c, k_c, cp_c, rho_c, a_c = fluid.transport(Tc * (1 + 1e-6) + 1e-6, pc)
-            re_i[k], re_o[k] = G_hot * d_t / mu_h, G_cold * d_a / mu_c
-            c_i = hx.tube(re_i[k], mu_h * cp_h / k_h, d_t, geometry.roughness, geometry.coil_diameter)
-            c_o = hx.annulus(re_o[k], mu_c * cp_c / k_c, a, d_a)
-            h_i[k], h_o[k] = c_i.nusselt * k_h / d_t, c_o.nusselt * k_c / d_a
-            reg_i.append(c_i.regime)
-            reg_o.append(c_o.regime)
-            v_i[k], v_o[k] = G_hot / rho_h, G_cold / rho_c
-            ma_i[k], ma_o[k] = v_i[k] / a_h, v_o[k] / a_c
-            vol_h[k], vol_c[k] = 1.0 / rho_h, 1.0 / rho_c
-            per_m = geometry.conductance_per_length(h_i[k], h_o[k], wall.at(0.5 * (Th + Tc)))
-            lmtd = _lmtd(T_hot[k + 1] - T_cold[k + 1], T_hot[k] - T_cold[k])
-            dq = q[k + 1] - q[k]
-            lengths[k] = dq / (per_m * lmtd) if lmtd > 0 else math.inf
-            conductance[k] = per_m * lengths[k] if lmtd > 0 else math.inf
-            dx = lengths[k] if math.isfinite(lengths[k]) else 0.0
-            dp_hot[k] = c_i.friction * dx / d_t * G_hot ** 2 / (2.0 * rho_h)
-            dp_cold[k] = c_o.friction * dx / d_a * G_cold ** 2 / (2.0 * rho_c)
-        # Acceleration: G^2 times the change of specific volume over each zone, with the volumes
-        # at the boundaries taken from the zone means (the ends from the end states).
-        v_hot = _boundary_volumes(vol_h, 1.0 / _density(fluid, T_hot[0], p_hot[0]), 1.0 / hot_in.density)
-        v_cold = _boundary_volumes(vol_c, 1.0 / cold_in.density, 1.0 / _density(fluid, T_cold[-1], p_cold[-1]))
-        dp_hot += G_hot ** 2 * (v_hot[:-1] - v_hot[1:])  # flowing from the warm end to the cold end
-        dp_cold += G_cold ** 2 * (v_cold[1:] - v_cold[:-1])
-        new_hot = hot_in.p - np.concatenate([np.cumsum(dp_hot[::-1])[::-1], [0.0]])
-        new_cold = cold_in.p - np.concatenate([[0.0], np.cumsum(dp_cold)])
-        if np.min(new_hot) <= 0.05 * hot_in.p or np.min(new_cold) <= 0.05 * cold_in.p:
-            raise PressureCollapseError(
-                f"{key}.geometry: a pressure would fall below 5 % of its inlet value along the exchanger at this flow and duty (the "
-                f"friction of the passages is far too high for the length needed): use wider or more tubes")
-        change = max(float(np.max(np.abs(new_hot - p_hot))), float(np.max(np.abs(new_cold - p_cold))))
-        p_hot, p_cold = new_hot, new_cold
-        if change <= PRESSURE_TOLERANCE:
+        march = _march(fluid, geometry, wall, key, p_hot, p_cold, h_hot, h_cold, q, G, hot_in, cold_in, inlets,
+                       guesses)
+        change = max(float(np.max(np.abs(march.new_hot - p_hot))) / hot_in.p,
+                     float(np.max(np.abs(march.new_cold - p_cold))) / cold_in.p)
+        if change <= PRESSURE_RTOL or not np.all(np.isfinite(march.lengths)):
             break
-    T_hot = fluid.temperatures_ph(p_hot, h_hot)
-    T_cold = fluid.temperatures_ph(p_cold, h_cold)
+        p_hot, p_cold, guesses = _estimate(march, h_hot, h_cold, q, G, hot_in, cold_in)
+    h_i, h_o, re_i, re_o, v_i, v_o, ma_i, ma_o, (reg_i, reg_o), conductance = march.details
+    profile = ExchangerProfile(q / (hot_flow if hot_flow else 1.0), march.hot.T, march.cold.T, p_hot, p_cold)
+    return RatedProfile(profile, march.lengths, h_i, h_o, re_i, re_o, v_i, v_o, ma_i, ma_o, reg_i, reg_o,
+                        conductance, passes, march)
+
+
+def _new_pressures(lengths, v_hot, v_cold, friction_hot, friction_cold, G, hot_in, cold_in):
+    """Boundary pressures from the zones' lengths and the streams' specific volumes at the
+    boundaries [m3/kg]: friction (on each zone's mean volume) and acceleration."""
+    dx = np.where(np.isfinite(lengths), lengths, 0.0)
+    dp_hot = friction_hot * dx * 0.5 * (v_hot[:-1] + v_hot[1:]) + G[0] ** 2 * (v_hot[:-1] - v_hot[1:])
+    dp_cold = friction_cold * dx * 0.5 * (v_cold[:-1] + v_cold[1:]) + G[1] ** 2 * (v_cold[1:] - v_cold[:-1])
+    new_hot = hot_in.p - np.concatenate([np.cumsum(dp_hot[::-1])[::-1], [0.0]])  # from the warm end
+    new_cold = cold_in.p - np.concatenate([[0.0], np.cumsum(dp_cold)])           # from the cold end
+    return new_hot, new_cold
+
+
+def _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, passes=40):
+    """Boundary pressures at enthalpies ``h_hot``, ``h_cold`` on the linear model of the march
+    ``base``, iterated until they settle (to a tenth of :data:`PRESSURE_RTOL`); and the states'
+    temperatures and densities there, as the next march's starting guesses."""
+    hot, cold = base.hot, base.cold
+    T_h0 = hot.T + hot.dT_dh * (h_hot - base.h_hot)
+    r_h0 = hot.density + hot.drho_dh * (h_hot - base.h_hot)
+    T_c0 = cold.T + cold.dT_dh * (h_cold - base.h_cold)
+    r_c0 = cold.density + cold.drho_dh * (h_cold - base.h_cold)
+    dq = np.diff(q)
+    # A flow other than the base's: friction scaled with the square of the mass flux (the friction
+    # factors and conductances kept: an estimate, checked by the next march).
+    # At another duty a zone sits at other temperatures: its conductance per metre and friction
+    # are read off the base's, interpolated on the zone's mean temperature of each stream.
+    Th_base = 0.5 * (hot.T[:-1] + hot.T[1:])
+    Tc_base = 0.5 * (cold.T[:-1] + cold.T[1:])
+    Th_new = 0.5 * (T_h0[:-1] + T_h0[1:])
+    Tc_new = 0.5 * (T_c0[:-1] + T_c0[1:])
+    per_metre = np.interp(Th_new, Th_base, base.per_metre) if np.all(np.diff(Th_base) > 0) else base.per_metre
+    friction_hot = base.friction_hot * (G[0] / base.G[0]) ** 2
+    friction_cold = base.friction_cold * (G[1] / base.G[1]) ** 2
+    if np.all(np.diff(Th_base) > 0):
+        friction_hot = np.interp(Th_new, Th_base, friction_hot)
+    if np.all(np.diff(Tc_base) > 0):
+        friction_cold = np.interp(Tc_new, Tc_base, friction_cold)
+    p_hot, p_cold = base.new_hot, base.new_cold
+    for _ in range(passes):
+        T_h = T_h0 + hot.dT_dp * (p_hot - base.p_hot)
+        r_h = r_h0 + hot.drho_dp * (p_hot - base.p_hot)
+        T_c = T_c0 + cold.dT_dp * (p_cold - base.p_cold)
+        r_c = r_c0 + cold.drho_dp * (p_cold - base.p_cold)
+        lmtd = _lmtd(T_h[1:] - T_c[1:], T_h[:-1] - T_c[:-1])
+        if np.any(lmtd <= 0) or np.any(r_h <= 0) or np.any(r_c <= 0):
+            return base.new_hot, base.new_cold, None  # the model leaves its range: march from the base's pressures
+        lengths = dq / (per_metre * lmtd)
+        new_hot, new_cold = _new_pressures(lengths, 1.0 / r_h, 1.0 / r_c, friction_hot, friction_cold, G, hot_in,
+                                           cold_in)
+        change = max(float(np.max(np.abs(new_hot - p_hot))) / hot_in.p,
+                     float(np.max(np.abs(new_cold - p_cold))) / cold_in.p)
+        p_hot, p_cold = new_hot, new_cold
+        if change <= 0.1 * PRESSURE_RTOL:
+            break
+    if np.min(p_hot) <= 0.05 * hot_in.p or np.min(p_cold) <= 0.05 * cold_in.p:
+        return base.new_hot, base.new_cold, None
+    return p_hot, p_cold, ((T_h, r_h), (T_c, r_c))
+
+
+def _march(fluid, geometry, wall, key, p_hot, p_cold, h_hot, h_cold, q, G, hot_in, cold_in, inlets, guesses):
+    """One pass: both streams' states at the given boundary pressures, each zone's coefficients,
+    length and pressure drop, and the boundary pressures they give."""
+    from properties import PropertyRangeError
+
+    n = len(q) - 1
+    try:
+        # The hot stream is marched from the warm end, where its state is known.
+        hot_guess = (guesses[0][0][::-1], guesses[0][1][::-1]) if guesses else None
+        hot = fluid.march_ph(p_hot[::-1], h_hot[::-1], hot_guess, first=(hot_in.T, hot_in.density))
+        hot = type(hot)(*(a[::-1] for a in hot))
+        cold = fluid.march_ph(p_cold, h_cold, guesses[1] if guesses else None)
+    except PropertyRangeError as err:
+        raise ScenarioError(f"{key}.geometry: {err}") from None
+    T_hot, T_cold = hot.T, cold.T.copy()
     T_cold[0] = cold_in.T
-    profile = ExchangerProfile(q / (hot_flow if hot_flow else 1.0), T_hot, T_cold, p_hot, p_cold)
-    return RatedProfile(profile, lengths, h_i, h_o, re_i, re_o, v_i, v_o, ma_i, ma_o, tuple(reg_i), tuple(reg_o),
-                        conductance, passes)
+    cold = cold._replace(T=T_cold)
+    wet = np.flatnonzero(np.isfinite(hot.quality))
+    if wet.size == 0 and hot_in.p < fluid.p_critical:
+        wet = [k for k in range(n) if _two_phase(fluid, 0.5 * (p_hot[k] + p_hot[k + 1]), h_hot[k], h_hot[k + 1])]
+    Th, Tc = 0.5 * (T_hot[:-1] + T_hot[1:]), 0.5 * (T_cold[:-1] + T_cold[1:])
+    rho_h, rho_c = 0.5 * (hot.density[:-1] + hot.density[1:]), 0.5 * (cold.density[:-1] + cold.density[1:])
+    try:
+        if len(wet):
+            raise PropertyRangeError("two-phase")
+        mu_h, k_h, cp_h, a_h = fluid.transport_td(Th, rho_h)
+    except PropertyRangeError:
+        k = min(wet[0] if len(wet) else n - 1, n - 1)
+        ph = 0.5 * (p_hot[k] + p_hot[k + 1])
+        raise ScenarioError(
+            f"{key}.geometry: the high-pressure stream would condense in zone {n - k} of {n} from the warm end (at "
+            f"{ph / 1e5:.4g} bar, {Th[k]:.2f} K): no condensation correlation is used; raise high_pressure "
+            f"above the critical pressure or give the recuperator by ua") from None
+    try:
+        mu_c, k_c, cp_c, a_c = fluid.transport_td(Tc, rho_c)
+    except PropertyRangeError:  # a zone's mean state on the dew line: a hair into the vapour
+        props = [fluid.transport(T * (1 + 1e-6) + 1e-6, 0.5 * (p_cold[j] + p_cold[j + 1])) for j, T in enumerate(Tc)]
+        mu_c, k_c, cp_c, _, a_c = (np.array(c) for c in zip(*props))
+    d_t, d_a, a = geometry.inner_inside, geometry.annulus_hydraulic_diameter, geometry.diameter_ratio
+    re_i, re_o = G[0] * d_t / mu_h, G[1] * d_a / mu_c
+    nu_i, f_i, reg_i = hx.tube_zones(re_i, mu_h * cp_h / k_h, d_t, geometry.roughness, geometry.coil_diameter)
+    nu_o, f_o, reg_o = hx.annulus_zones(re_o, mu_c * cp_c / k_c, a, d_a)
+    h_i, h_o = nu_i * k_h / d_t, nu_o * k_c / d_a
+    per_metre = geometry.conductance_per_length(h_i, h_o, wall.at(0.5 * (Th + Tc)))
+    lmtd = _lmtd(T_hot[1:] - T_cold[1:], T_hot[:-1] - T_cold[:-1])
+    touching = lmtd <= 0
+    with np.errstate(divide="ignore"):
+        lengths = np.where(touching, np.inf, np.diff(q) / (per_metre * np.where(touching, 1.0, lmtd)))
+    conductance = np.where(touching, np.inf, per_metre * lengths)
+    friction_hot, friction_cold = f_i * G[0] ** 2 / (2.0 * d_t), f_o * G[1] ** 2 / (2.0 * d_a)
+    new_hot, new_cold = _new_pressures(lengths, 1.0 / hot.density, 1.0 / cold.density, friction_hot, friction_cold,
+                                       G, hot_in, cold_in)
+    if np.min(new_hot) <= 0.05 * hot_in.p or np.min(new_cold) <= 0.05 * cold_in.p:
+        raise PressureCollapseError(
+            f"{key}.geometry: a pressure would fall below 5 % of its inlet value along the exchanger at this flow and duty (the "
+            f"friction of the passages is far too high for the length needed): use wider or more tubes")
+    v_i, v_o = G[0] / rho_h, G[1] / rho_c
+    details = (h_i, h_o, re_i, re_o, v_i, v_o, v_i / a_h, v_o / a_c, (tuple(reg_i), tuple(reg_o)), conductance)
+    return _Pass(h_hot, h_cold, p_hot, p_cold, hot, cold, per_metre, friction_hot, friction_cold, lengths, new_hot,
+                 new_cold, inlets, G, details)
 
 
 def _two_phase(fluid, p, h_a, h_b):
@@ -231,22 +342,6 @@ def _two_phase(fluid, p, h_a, h_b):
     pressure) reaches inside the saturation dome."""
     liquid, vapour = fluid.saturated_liquid(p), fluid.saturated_vapour(p)
     return min(h_a, h_b) < vapour.h and max(h_a, h_b) > liquid.h
-
-
-def _density(fluid, T, p):
-    from properties import PropertyRangeError
-
-    try:
-        return fluid.state_tp(T, p).density
-    except PropertyRangeError:  # on the saturation line: the vapour's
-        return fluid.state_tp(T * (1 + 1e-6), p).density
-
-
-def _boundary_volumes(means, first, last):
-    """Specific volumes at the zone boundaries [m3/kg]: the ends given, each interior boundary the
-    mean of its two zones' volumes."""
-    inner = 0.5 * (means[:-1] + means[1:])
-    return np.concatenate([[first], inner, [last]])
 
 
 # A return-side pressure drop above this share of the return gas's inlet pressure is warned

@@ -334,6 +334,49 @@ class Fluid:
         p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
         return np.array(self._march.march(p, h, full=False))
 
+    def march_ph(self, pressures, enthalpies, guesses=None, first=None):
+        """Many (p, h) states along one stream as arrays, with their sensitivities to p and h
+        (a :class:`properties.march.Marched`).
+
+        Parameters
+        ----------
+        pressures, enthalpies : array_like
+            [Pa], [J/kg], in the order of the stream (each state starts from its neighbours').
+        guesses : (array_like, array_like), optional
+            Temperatures [K] and densities [kg/m3] near the states (a neighbouring march's).
+        first : (float, float), optional
+            Temperature [K] and density [kg/m3] near the first state (without ``guesses``, the
+            first state is otherwise found by CoolProp's flash).
+        """
+        h = np.atleast_1d(np.asarray(enthalpies, dtype=float))
+        p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
+        return self._march.march_sensitivities(p, h, guesses, first)
+
+    def transport_td(self, T, density):
+        """Transport properties at many one-phase states given by temperature [K] and density
+        [kg/m3]: arrays (dynamic viscosity [Pa s], thermal conductivity [W/(m K)], cp [J/(kg K)],
+        speed of sound [m/s]).  Cheaper than :meth:`transport` (no pressure to solve for).
+
+        Raises
+        ------
+        PropertyRangeError
+            Where a state is two-phase, outside the equation of state, or CoolProp has no
+            transport model for the fluid.
+        """
+        T = np.asarray(T, dtype=float)
+        D = np.asarray(density, dtype=float) / self.molar_mass
+        out = np.empty((4, T.size))
+        st = self._state
+        for i in range(T.size):
+            try:
+                st.update(CP.DmolarT_INPUTS, D[i], T[i])
+                out[:, i] = st.viscosity(), st.conductivity(), st.cpmass(), st.speed_sound()
+            except ValueError as err:
+                self._reset_state()
+                self._fail(f"T = {_fmt_T(T[i])}, density = {D[i] * self.molar_mass:.6g} kg/m3 (transport properties)",
+                           f"CoolProp has no transport property here ({str(err).strip()})")
+        return out[0], out[1], out[2], out[3]
+
     @property
     def _march(self):
         if self._marcher is None:

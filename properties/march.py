@@ -12,7 +12,9 @@ flash, so the answers are those of HEOS.
 """
 
 import math
+from typing import NamedTuple
 
+import numpy as np
 from CoolProp import CoolProp as CP
 
 from properties.state import State, two_phase_label
@@ -21,6 +23,34 @@ _MAX_STEPS = 25
 # Converged when p is met to 1e-11 relative and h to 1e-7 J/kg (about 1e-10 K at cp ~ 1 kJ/(kg K)).
 _P_RTOL = 1e-11
 _H_ATOL = 1e-7
+
+
+class Marched(NamedTuple):
+    """States of a march as arrays (index as given), with the local sensitivities a caller
+    needs to estimate nearby states without marching again.
+
+    Attributes
+    ----------
+    T : numpy.ndarray
+        [K]
+    density : numpy.ndarray
+        [kg/m3]
+    dT_dp, dT_dh : numpy.ndarray
+        (dT/dp) at constant h [K/Pa] and (dT/dh) at constant p [K kg/J].
+    drho_dp, drho_dh : numpy.ndarray
+        (drho/dp) at constant h [kg/(m3 Pa)] and (drho/dh) at constant p [kg2/(m3 J)].
+    quality : numpy.ndarray
+        Vapour mass fraction of two-phase states, NaN for one-phase ones (whose
+        sensitivities are 0: the march leaves them out).
+    """
+
+    T: np.ndarray
+    density: np.ndarray
+    dT_dp: np.ndarray
+    dT_dh: np.ndarray
+    drho_dp: np.ndarray
+    drho_dh: np.ndarray
+    quality: np.ndarray
 
 
 class PhMarch:
@@ -62,7 +92,10 @@ class PhMarch:
         """The state at (p, h); ``guess`` is (T [K], molar density [mol/m3]) of a nearby state.
 
         With ``full=False`` only ``(T, molar density or None, quality or None)`` is returned,
-        which saves building a :class:`State` where the march needs temperatures alone."""
+        which saves building a :class:`State` where the march needs temperatures alone; with
+        ``full="sensitivities"``, ``(T, molar density, quality or None, jacobian or None)`` where
+        ``jacobian`` is (dp/dT, dp/dD, dh/dT, dh/dD) at the state (or at Newton's last iterate,
+        within about 1e-4 K of it)."""
         fl = self.fluid
         if not (0.0 < p <= fl.p_max) or abs(p / fl.p_critical - 1.0) < 1e-9 or h != h:
             return self._flash(p, h, full)  # the flash checks the pressure, and steps off the critical one
@@ -75,6 +108,8 @@ class PhMarch:
                     return self._flash(p, h, full)
                 q = (h - h_l) / (h_v - h_l)
                 self.newton_states += 1
+                if full == "sensitivities":
+                    return T_b, 1.0 / ((1.0 - q) / D_l + q / D_v), q, None
                 if not full:
                     return T_b, None, q
                 rho = 1.0 / ((1.0 - q) / (D_l * self.M) + q / (D_v * self.M))
@@ -84,7 +119,8 @@ class PhMarch:
                 guess = (T_b * (1 - 1e-4), D_l) if side == "liquid" else (T_d * (1 + 1e-4), D_v)
         if guess is None:
             return self._flash(p, h, full)
-        found = self._newton(p, h, guess[0], guess[1], final_step=not full)
+        jacobian = [] if full == "sensitivities" else None
+        found = self._newton(p, h, guess[0], guess[1], final_step=full is not True, jacobian=jacobian)
         if found is None:
             return self._flash(p, h, full)
         T, D = found
@@ -95,6 +131,8 @@ class PhMarch:
             return self._flash(p, h, full)
         st = self.state
         self.newton_states += 1
+        if full == "sensitivities":
+            return T, D, None, tuple(jacobian) if jacobian else self._jacobian()
         if not full:
             return T, D, None
         return State(fl.name, T, float(p), float(h), st.smass(), st.rhomass(), None,
@@ -104,10 +142,17 @@ class PhMarch:
         T_melt = self.fluid.melting_temperature(p)
         return T_melt is not None and T < T_melt
 
-    def _newton(self, p, h, T, D, final_step=False):
+    def _jacobian(self):
+        st = self.state
+        return (st.first_partial_deriv(CP.iP, CP.iT, CP.iDmolar), st.first_partial_deriv(CP.iP, CP.iDmolar, CP.iT),
+                st.first_partial_deriv(CP.iHmass, CP.iT, CP.iDmolar),
+                st.first_partial_deriv(CP.iHmass, CP.iDmolar, CP.iT))
+
+    def _newton(self, p, h, T, D, final_step=False, jacobian=None):
         """Newton's method on (T, D); with ``final_step`` a last step small enough that the
         next would change T by far less than 1e-6 K (quadratic convergence) is taken without
-        evaluating the state there (temperature-only marches)."""
+        evaluating the state there (temperature-only marches).  A list given as ``jacobian``
+        receives the last partial derivatives evaluated (empty if none was)."""
         st = self.state
         for _ in range(_MAX_STEPS):
             try:
@@ -125,6 +170,8 @@ class PhMarch:
             det = dp_dT * dh_dD - dp_dD * dh_dT
             if det == 0.0 or not math.isfinite(det):
                 return None
+            if jacobian is not None:
+                jacobian[:] = (dp_dT, dp_dD, dh_dT, dh_dD)
             dT = (-f_p * dh_dD + f_h * dp_dD) / det
             dD = (-dp_dT * f_h + dh_dT * f_p) / det
             # Damp steps that would take T or D past zero or far from where they were.
@@ -142,7 +189,10 @@ class PhMarch:
     def _flash(self, p, h, full=True):
         self.flash_states += 1
         st = self.fluid.state_ph(p, h)
-        return st if full else (st.T, st.density / self.M if st.quality is None else None, st.quality)
+        if full == "sensitivities":
+            one_phase = st.quality is None
+            return st.T, st.density / self.M, st.quality, self._jacobian() if one_phase else None
+        return st if full is True else (st.T, st.density / self.M if st.quality is None else None, st.quality)
 
     def march(self, pressures, enthalpies, guesses=None, full=True):
         """Solve states in order, each started from a straight-line extrapolation of the two
@@ -171,3 +221,42 @@ class PhMarch:
                 out.append(T)
             last = (last + [(h, T, D)])[-2:] if q is None else []
         return out
+
+    def march_sensitivities(self, pressures, enthalpies, guesses=None, first=None):
+        """Solve states in order as :meth:`march`, and return them as :class:`Marched` arrays with
+        each one-phase state's sensitivities to p and h (from the Jacobian Newton's method
+        already has: no extra property call).  ``guesses`` is (temperatures [K], densities
+        [kg/m3]) near every state; ``first`` (T, density) near the first one only."""
+        n = len(enthalpies)
+        T, rho, q = np.empty(n), np.empty(n), np.full(n, np.nan)
+        dT_dp, dT_dh, drho_dp, drho_dh = np.zeros(n), np.zeros(n), np.zeros(n), np.zeros(n)
+        M = self.M
+        last = []
+        for k in range(n):
+            p, h = float(pressures[k]), float(enthalpies[k])
+            guess = None
+            if guesses is not None:
+                guess = (float(guesses[0][k]), float(guesses[1][k]) / M)
+            elif len(last) == 2 and last[1][0] != last[0][0]:
+                (h0, T0, D0), (h1, T1, D1) = last
+                w = (h - h1) / (h1 - h0)
+                guess = (T1 + w * (T1 - T0), D1 + w * (D1 - D0))
+                if not (guess[0] > 0 and guess[1] > 0):
+                    guess = (T1, D1)
+            elif last:
+                guess = last[-1][1:]
+            elif k == 0 and first is not None:
+                guess = (float(first[0]), float(first[1]) / M)
+            Tk, Dk, qk, jac = self.solve(p, h, guess, full="sensitivities")
+            T[k], rho[k] = Tk, Dk * M
+            if qk is not None:
+                q[k] = qk
+                last = []
+                continue
+            last = (last + [(h, Tk, Dk)])[-2:]
+            if jac is not None:
+                dp_dT, dp_dD, dh_dT, dh_dD = jac
+                det = dp_dT * dh_dD - dp_dD * dh_dT
+                dT_dp[k], dT_dh[k] = dh_dD / det, -dp_dD / det
+                drho_dp[k], drho_dh[k] = -dh_dT / det * M, dp_dT / det * M
+        return Marched(T, rho, dT_dp, dT_dh, drho_dp, drho_dh, q)

@@ -123,3 +123,50 @@ def test_temperatures_alone_equal_the_states():
     p = np.linspace(40e5, 39e5, 50)
     h = np.linspace(ar.saturated_liquid(39e5).h - 3e4, ar.state_tp(300.0, 40e5).h, 50)
     assert ar.temperatures_ph(p, h) == pytest.approx([s.T for s in ar.states_ph(p, h)], abs=1e-9)
+
+
+@pytest.mark.parametrize("name, p, T_lo, T_hi", [("nitrogen", 200e5, 110.0, 300.0), ("nitrogen", 1.05e5, 80.0, 295.0),
+                                                 ("helium", 3e5, 8.0, 300.0), ("methane", 60e5, 130.0, 300.0)])
+def test_march_sensitivities_are_the_state_derivatives(name, p, T_lo, T_hi):
+    # The sensitivities the rated exchanger's linear estimate uses against central finite
+    # differences of the march itself (1e-3 relative: the Jacobian is Newton's last iterate's,
+    # within about 1e-4 K of the state) and the states against the temperatures-only march.
+    fl = fresh(name)
+    h = np.linspace(fl.state_tp(T_lo, p).h, fl.state_tp(T_hi, p).h, 25)
+    pressures = np.full(h.size, p)
+    m = fl.march_ph(pressures, h)
+    assert m.T == pytest.approx(fl.temperatures_ph(pressures, h), abs=1e-7)
+    assert m.density == pytest.approx([s.density for s in fl.states_ph(pressures, h)], rel=1e-8)
+    assert np.all(np.isnan(m.quality))
+    dp, dh = 1e-5 * p, 5.0
+    up, down = fl.march_ph(pressures + dp, h), fl.march_ph(pressures - dp, h)
+    assert m.dT_dp == pytest.approx((up.T - down.T) / (2 * dp), rel=1e-3, abs=1e-12)
+    assert m.drho_dp == pytest.approx((up.density - down.density) / (2 * dp), rel=1e-3)
+    up, down = fl.march_ph(pressures, h + dh), fl.march_ph(pressures, h - dh)
+    assert m.dT_dh == pytest.approx((up.T - down.T) / (2 * dh), rel=1e-3)
+    assert m.drho_dh == pytest.approx((up.density - down.density) / (2 * dh), rel=1e-3)
+
+
+def test_march_from_a_saturated_vapour_and_with_guesses():
+    n2 = fresh("nitrogen")
+    p = 1.05e5
+    vapour = n2.saturated_vapour(p)
+    h = np.linspace(vapour.h, n2.state_tp(290.0, p).h, 20)
+    m = n2.march_ph(np.full(20, p), h)
+    assert m.quality[0] == pytest.approx(1.0) and np.all(np.isnan(m.quality[1:]))
+    assert m.T[0] == pytest.approx(vapour.T, abs=1e-9) and m.density[0] == pytest.approx(vapour.density, rel=1e-9)
+    assert m.dT_dp[0] == 0.0  # a two-phase state carries no sensitivities
+    again = n2.march_ph(np.full(20, p), h, guesses=(m.T * 1.001, m.density * 0.999))
+    assert again.T == pytest.approx(m.T, abs=1e-7)
+
+
+def test_transport_at_temperature_and_density_equals_that_at_temperature_and_pressure():
+    n2 = get_fluid("nitrogen")
+    for T, p in [(300.0, 1e5), (120.0, 1.05e5), (150.0, 200e5), (110.0, 200e5)]:
+        state = n2.state_tp(T, p)
+        mu, k, cp, a = (float(x[0]) for x in n2.transport_td([T], [state.density]))
+        mu_p, k_p, cp_p, _, a_p = n2.transport(T, p)
+        assert (mu, k, cp, a) == pytest.approx((mu_p, k_p, cp_p, a_p), rel=1e-9)
+    with pytest.raises(PropertyRangeError, match="transport"):
+        # inside the dome at 77 K: a two-phase state has no transport property
+        n2.transport_td([77.0], [100.0])

@@ -252,7 +252,8 @@ def main():
                 f"{datetime.date.today().isoformat()}: Python {platform.python_version()}, CoolProp "
                 f"{CoolProp.__version__}, {platform.machine()}, 2 cores. The point: nitrogen 1.05 -> 200 bar, "
                 f"isothermal compressor, recuperator sized by UA = 400 W/K over 50 zones, 150 kg/h compressor "
-                f"flow. Times are medians of repeated runs; compare them as ratios.\n\n")
+                f"flow. Times are medians of repeated runs; compare them as ratios (this virtual machine's speed "
+                f"changes between sessions by up to three times, the ratios by a few per cent).\n\n")
         notes = """
 ## What makes a point cheap
 
@@ -270,6 +271,11 @@ def main():
   UA, the effectiveness-NTU relation with mean heat capacities), an outward bracket from it, then
   Brent's method; profiles already marched are remembered. The tolerance on the duty is 1e-10 of its
   largest value (about 2e-5 J/kg), reported in each solve as `tolerance`.
+- **A rated geometry point** (`cycle/tube_exchanger.py`, `docs/recuperator-geometry.md`): the
+  correlations on NumPy arrays for all zones at once, transport properties from one
+  density-temperature update per zone, the pressures settled on a linear model of the last march
+  (the states' sensitivities from Newton's Jacobian) so a duty takes one or two marches, and the
+  length solved on 1/length (eight marches a point).
 - **Caches**: one `AbstractState` per fluid per process; saturation data per pressure kept.
 - **Start-up**: `lhsim --help` and argument errors import neither CoolProp, pandas, matplotlib,
   SciPy nor Dask (a test checks this); importing CoolProp costs about 2.5 s per process, paid once.
