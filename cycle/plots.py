@@ -271,8 +271,12 @@ def exchanger_profiles(result, against=None):
         q, th, tc, dT = d["pinch"]
         ax.plot([q, q], [tc, th], color=INK, lw=1.2)
         ax.plot([q, q], [tc, th], "_", color=INK, ms=10)
-        ax.annotate(f"minimum approach {dT:.2f} K", (q, 0.5 * (th + tc)), xytext=(0.97, 0.12),
-                    textcoords="axes fraction", ha="right", va="bottom", fontsize=9, color=INK,
+        # The label in the empty lower corner on the mark's side (the curves fall away from the warm
+        # end, which is on the left against length and on the right against duty), above the legend.
+        x_lo, x_hi = min(d["duty"]), max(d["duty"])
+        left = q - x_lo < 0.5 * (x_hi - x_lo)
+        ax.annotate(f"minimum approach {dT:.2f} K", (q, 0.5 * (th + tc)), xytext=(0.04 if left else 0.97, 0.3 if left else 0.12),
+                    textcoords="axes fraction", ha="left" if left else "right", va="bottom", fontsize=9, color=INK,
                     arrowprops=dict(arrowstyle="->", color=INK, lw=0.8))
         ax.set_xlabel(d["x_label"])
         ax.set_ylabel("temperature T [K]")
