@@ -25,6 +25,17 @@ _P_RTOL = 1e-11
 _H_ATOL = 1e-7
 
 
+def _extrapolated(last, h):
+    """A (T, D) start for the state at ``h`` from up to two (h, T, D) of the states before it:
+    on the straight line through two, the one's own with one, None with none."""
+    if len(last) == 2 and last[1][0] != last[0][0]:
+        (h0, T0, D0), (h1, T1, D1) = last
+        w = (h - h1) / (h1 - h0)
+        guess = (T1 + w * (T1 - T0), D1 + w * (D1 - D0))
+        return guess if guess[0] > 0 and guess[1] > 0 else (T1, D1)
+    return last[-1][1:] if last else None
+
+
 class Marched(NamedTuple):
     """States of a march as arrays (index as given), with the local sensitivities a caller
     needs to estimate nearby states without marching again.
@@ -201,17 +212,7 @@ class PhMarch:
         last = []  # up to two (h, T, D) of the latest single-phase states, newest last
         for k, (p, h) in enumerate(zip(pressures, enthalpies)):
             p, h = float(p), float(h)
-            guess = None
-            if guesses is not None and guesses[k] is not None:
-                guess = guesses[k]
-            elif len(last) == 2 and last[1][0] != last[0][0]:
-                (h0, T0, D0), (h1, T1, D1) = last
-                w = (h - h1) / (h1 - h0)
-                guess = (T1 + w * (T1 - T0), D1 + w * (D1 - D0))
-                if not (guess[0] > 0 and guess[1] > 0):
-                    guess = (T1, D1)
-            elif last:
-                guess = last[-1][1:]
+            guess = guesses[k] if guesses is not None and guesses[k] is not None else _extrapolated(last, h)
             solved = self.solve(p, h, guess, full)
             if full:
                 out.append(solved)
@@ -234,19 +235,12 @@ class PhMarch:
         last = []
         for k in range(n):
             p, h = float(pressures[k]), float(enthalpies[k])
-            guess = None
             if guesses is not None:
                 guess = (float(guesses[0][k]), float(guesses[1][k]) / M)
-            elif len(last) == 2 and last[1][0] != last[0][0]:
-                (h0, T0, D0), (h1, T1, D1) = last
-                w = (h - h1) / (h1 - h0)
-                guess = (T1 + w * (T1 - T0), D1 + w * (D1 - D0))
-                if not (guess[0] > 0 and guess[1] > 0):
-                    guess = (T1, D1)
-            elif last:
-                guess = last[-1][1:]
             elif k == 0 and first is not None:
                 guess = (float(first[0]), float(first[1]) / M)
+            else:
+                guess = _extrapolated(last, h)
             Tk, Dk, qk, jac = self.solve(p, h, guess, full="sensitivities")
             T[k], rho[k] = Tk, Dk * M
             if qk is not None:
