@@ -372,6 +372,49 @@ class OrthoParaHydrogen:
         phase = (para or ortho).phase
         return OrthoParaState(float(T), float(p), h, s, 1.0 / v, float(x), phase)
 
+    def state_ph(self, p, h, para_fraction):
+        """State at pressure ``p`` [Pa], specific enthalpy ``h`` [J/kg] and para fraction [-],
+        single phase: the temperature found by Brent's method to 1e-9 K on the branch whose
+        enthalpies hold ``h`` (liquid below the lower of the two saturation temperatures at
+        ``p``, vapour above the higher, each kept 1e-5 of itself off the line, where CoolProp
+        gives no one-phase state; one branch at or above both critical pressures).
+
+        Raises
+        ------
+        PropertyRangeError
+            Where ``h`` lies in the mixture's two-phase band (or on a saturation line), or
+            outside the equations of state.
+        """
+        from scipy.optimize import brentq
+
+        x = para_fraction
+        asked = f"p = {p!r} Pa, h = {h!r} J/kg, para fraction {x!r}"
+        self._check_fraction(x, asked)
+        if not (_is_number(p) and math.isfinite(p) and p > 0) or not (_is_number(h) and math.isfinite(h)):
+            raise PropertyRangeError(f"hydrogen: no state at {asked}: p must be above 0 and h a finite number")
+        parts = [f for f, share in ((self._para, x), (self._ortho, 1.0 - x)) if share > 0.0]
+        T_low = max(max(f.T_min, f.melting_temperature(p) or 0.0) for f in parts) * (1.0 + 1e-9)
+        T_high = min(PARTITION_T_MAX, min(f.T_max for f in parts))
+        branches = [(T_low, T_high)]
+        subcritical = [f for f in parts if p < f.p_critical]
+        if subcritical:
+            T_sat = [f.saturation_temperature(p) for f in subcritical]
+            branches = [(T_low, min(T_sat) * (1.0 - 1e-5)), (max(T_sat) * (1.0 + 1e-5), T_high)]
+        for a, b in branches:
+            if not a < b:
+                continue
+            try:
+                h_a, h_b = self.h(a, p, x), self.h(b, p, x)
+            except PropertyRangeError:
+                continue
+            if h_a <= h <= h_b:
+                T = brentq(lambda t: self.h(t, p, x) - h, a, b, xtol=1e-9, rtol=1e-15)
+                return self.state_tp(T, p, x)
+        raise PropertyRangeError(
+            f"hydrogen at para fraction {x:g}: no single-phase state at p = {p / 1e5:.6g} bar, h = {h / 1e3:.6g} kJ/kg "
+            f"(in the two-phase band, on a saturation line, or outside the equations of state); the mixture's "
+            f"two-phase region is not modelled")
+
     def h(self, T, p, para_fraction):
         """Specific enthalpy [J/kg] at ``T`` [K], ``p`` [Pa] and para fraction [-]."""
         return self.state_tp(T, p, para_fraction).h

@@ -281,3 +281,23 @@ def test_storage_loss_refuses_bad_input_in_one_line(hours, x):
     with pytest.raises(PropertyRangeError) as err:
         storage_loss_fraction(hours, x)
     assert "\n" not in str(err.value)
+
+
+@pytest.mark.parametrize("T, p, x", [(300.0, 1e5, 0.25), (80.0, 200e5, 0.5), (40.0, 30e5, 0.9), (25.0, 5e5, 1.0),
+                                     (18.0, ATM, 0.25), (60.0, ATM, 0.0), (33.5, 13.5e5, 0.6)])
+def test_state_ph_round_trips_state_tp(T, p, x):
+    model = get_ortho_para_hydrogen()
+    st = model.state_tp(T, p, x)
+    back = model.state_ph(p, st.h, x)
+    assert back.T == pytest.approx(T, abs=1e-7)
+    assert back.s == pytest.approx(st.s, rel=1e-9, abs=1e-6)
+
+
+def test_state_ph_refuses_the_two_phase_band_in_one_line():
+    model = get_ortho_para_hydrogen()
+    liquid, vapour = model.state_tp(19.0, ATM, 0.5), model.state_tp(22.0, ATM, 0.5)
+    with pytest.raises(PropertyRangeError, match="two-phase") as err:
+        model.state_ph(ATM, 0.5 * (liquid.h + vapour.h), 0.5)
+    assert "\n" not in str(err.value)
+    with pytest.raises(PropertyRangeError):
+        model.state_ph(-1.0, 0.0, 0.5)
