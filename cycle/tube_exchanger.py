@@ -39,7 +39,7 @@ class Wall:
     def at(self, T):
         """Conductivity [W/(m K)] at ``T`` [K] (a number or an array)."""
         if self.conductivity is not None:
-            return self.conductivity + 0.0 * np.asarray(T, dtype=float) if np.ndim(T) else self.conductivity
+            return np.full(np.shape(T), float(self.conductivity)) if np.ndim(T) else self.conductivity
         return hx.wall_conductivity(self.material, T)
 
 
@@ -197,7 +197,7 @@ def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zone
     h_cold = cold_in.h + q / cold_flow
     inlets = (hot_in.p, hot_in.h, cold_in.p, cold_in.h)
     G = (hot_flow / geometry.tube_area, cold_flow / geometry.annulus_area)
-    base = start.base if start is not None and getattr(start, "base", None) is not None else None
+    base = getattr(start, "base", None)
     guesses = None
     if base is not None and base.inlets == inlets and len(base.h_hot) == n + 1:
         p_hot, p_cold, guesses = _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in)
@@ -206,8 +206,7 @@ def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zone
     for passes in range(1, PRESSURE_PASSES + 1):
         march = _march(fluid, geometry, wall, key, p_hot, p_cold, h_hot, h_cold, q, G, hot_in, cold_in, inlets,
                        guesses)
-        change = max(float(np.max(np.abs(march.new_hot - p_hot))) / hot_in.p,
-                     float(np.max(np.abs(march.new_cold - p_cold))) / cold_in.p)
+        change = _change(march.new_hot, p_hot, march.new_cold, p_cold, hot_in, cold_in)
         if change <= PRESSURE_RTOL or not np.all(np.isfinite(march.lengths)):
             break
         p_hot, p_cold, guesses = _estimate(march, h_hot, h_cold, q, G, hot_in, cold_in)
@@ -215,6 +214,11 @@ def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zone
     profile = ExchangerProfile(q / (hot_flow if hot_flow else 1.0), march.hot.T, march.cold.T, p_hot, p_cold)
     return RatedProfile(profile, march.lengths, h_i, h_o, re_i, re_o, v_i, v_o, ma_i, ma_o, reg_i, reg_o,
                         conductance, passes, march)
+
+
+def _change(new_hot, p_hot, new_cold, p_cold, hot_in, cold_in):
+    """Largest move of a boundary pressure, as a share of its stream's inlet pressure."""
+    return max(float(np.max(np.abs(new_hot - p_hot))) / hot_in.p, float(np.max(np.abs(new_cold - p_cold))) / cold_in.p)
 
 
 def _new_pressures(lengths, v_hot, v_cold, friction_hot, friction_cold, G, hot_in, cold_in):
@@ -240,19 +244,8 @@ def _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, passes=40):
     dq = np.diff(q)
     # A flow other than the base's: friction scaled with the square of the mass flux (the friction
     # factors and conductances kept: an estimate, checked by the next march).
-    # At another duty a zone sits at other temperatures: its conductance per metre and friction
-    # are read off the base's, interpolated on the zone's mean temperature of each stream.
-    Th_base = 0.5 * (hot.T[:-1] + hot.T[1:])
-    Tc_base = 0.5 * (cold.T[:-1] + cold.T[1:])
-    Th_new = 0.5 * (T_h0[:-1] + T_h0[1:])
-    Tc_new = 0.5 * (T_c0[:-1] + T_c0[1:])
-    per_metre = np.interp(Th_new, Th_base, base.per_metre) if np.all(np.diff(Th_base) > 0) else base.per_metre
     friction_hot = base.friction_hot * (G[0] / base.G[0]) ** 2
     friction_cold = base.friction_cold * (G[1] / base.G[1]) ** 2
-    if np.all(np.diff(Th_base) > 0):
-        friction_hot = np.interp(Th_new, Th_base, friction_hot)
-    if np.all(np.diff(Tc_base) > 0):
-        friction_cold = np.interp(Tc_new, Tc_base, friction_cold)
     p_hot, p_cold = base.new_hot, base.new_cold
     for _ in range(passes):
         T_h = T_h0 + hot.dT_dp * (p_hot - base.p_hot)
@@ -262,11 +255,10 @@ def _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, passes=40):
         lmtd = _lmtd(T_h[1:] - T_c[1:], T_h[:-1] - T_c[:-1])
         if np.any(lmtd <= 0) or np.any(r_h <= 0) or np.any(r_c <= 0):
             return base.new_hot, base.new_cold, None  # the model leaves its range: march from the base's pressures
-        lengths = dq / (per_metre * lmtd)
+        lengths = dq / (base.per_metre * lmtd)
         new_hot, new_cold = _new_pressures(lengths, 1.0 / r_h, 1.0 / r_c, friction_hot, friction_cold, G, hot_in,
                                            cold_in)
-        change = max(float(np.max(np.abs(new_hot - p_hot))) / hot_in.p,
-                     float(np.max(np.abs(new_cold - p_cold))) / cold_in.p)
+        change = _change(new_hot, p_hot, new_cold, p_cold, hot_in, cold_in)
         p_hot, p_cold = new_hot, new_cold
         if change <= 0.1 * PRESSURE_RTOL:
             break
