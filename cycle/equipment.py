@@ -313,8 +313,8 @@ class MakeupMixer:
     def makeup_state(self, fluid):
         return fluid.state_tp(self.makeup_temperature, self.makeup_pressure)
 
-    def run(self, fluid, return_state, return_flow, makeup_flow):
-        makeup = self.makeup_state(fluid)
+    def run(self, fluid, return_state, return_flow, makeup_flow, makeup_fluid=None):
+        makeup = self.makeup_state(makeup_fluid or fluid)
         return processes.mix(fluid, self.pressure, [(return_flow, return_state.h), (makeup_flow, makeup.h)])
 
 
@@ -358,13 +358,14 @@ class Recuperator:
     def cold_outlet_pressure(self, cold_in_p):
         return cold_in_p - self.spec.low_side_pressure_drop
 
-    def effectiveness(self, fluid, hot_in, colds, duty):
-        """Effectiveness reached with ``duty`` [J/kg compressed]."""
-        most = sum(flow * (fluid.state_tp(hot_in.T, self.cold_outlet_pressure(st.p)).h - st.h)
+    def effectiveness(self, fluid, hot_in, colds, duty, cold_fluid=None):
+        """Effectiveness reached with ``duty`` [J/kg compressed] (``cold_fluid``: the cold
+        streams' fluid where it is not the hot stream's)."""
+        most = sum(flow * ((cold_fluid or fluid).state_tp(hot_in.T, self.cold_outlet_pressure(st.p)).h - st.h)
                    for st, flow in colds)
         return duty / most
 
-    def profile(self, fluid, hot_in, colds, duty, zones=None, flow=None):
+    def profile(self, fluid, hot_in, colds, duty, zones=None, flow=None, cold_fluid=None):
         """Temperature profile for ``duty`` [J/kg compressed] (:class:`~cycle.processes.ExchangerProfile`).
 
         With a geometry, ``flow`` [kg/s] is the compressor flow, and the profile carries the
@@ -386,7 +387,8 @@ class Recuperator:
         if len(colds) == 1:
             (cold_in, flow), = colds
             return processes.counterflow_profile(fluid, hot_in, hot_p_out, 1.0, cold_in,
-                                                 self.cold_outlet_pressure(cold_in.p), flow, duty, zones)
+                                                 self.cold_outlet_pressure(cold_in.p), flow, duty, zones,
+                                                 cold_fluid=cold_fluid)
         return processes.composite_profile(
             fluid, hot_in, hot_p_out, 1.0,
             [(st, self.cold_outlet_pressure(st.p), flow) for st, flow in colds], duty, zones)

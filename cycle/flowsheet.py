@@ -126,6 +126,10 @@ class Section:
         ``colds_of(duty) -> [(inlet state, flow), ...]`` for a trial duty [J/kg compressed].
     T_floor : float
         Coldest cold-stream inlet temperature [K]: the hot stream cannot leave below it.
+    flow_of : callable, optional
+        ``flow_of(duty) -> compressor flow [kg/s]``, for a recuperator given by its geometry.
+    cold_fluid : properties.Fluid, optional
+        The cold streams' fluid where it is not ``fluid`` (hydrogen of another para fraction).
     """
 
     fluid: object
@@ -135,6 +139,7 @@ class Section:
     T_floor: float
     calls: int = 0
     flow_of: object = None  # duty -> compressor flow [kg/s], for a recuperator given by its geometry
+    cold_fluid: object = None  # the cold streams' fluid, where it is not the hot stream's
 
     def __post_init__(self):
         self._profiles = {}
@@ -145,7 +150,8 @@ class Section:
         if found is None:
             self.calls += 1
             flow = self.flow_of(duty) if self.recuperator.geometry is not None else None
-            found = self.recuperator.profile(self.fluid, self.hot_in, self.colds_of(duty), duty, flow=flow)
+            found = self.recuperator.profile(self.fluid, self.hot_in, self.colds_of(duty), duty, flow=flow,
+                                             cold_fluid=self.cold_fluid)
             if len(self._profiles) > 64:
                 self._profiles.clear()
             self._profiles[duty] = found
@@ -155,7 +161,7 @@ class Section:
         """Duty at which the cold streams leave ``approach`` [K] below the hot inlet temperature
         (no march: only the end states).  The first guess of a minimum-approach solve; exact
         where the pinch is at the warm end."""
-        fl, hot = self.fluid, self.hot_in
+        fl, hot = self.cold_fluid or self.fluid, self.hot_in
         T_out = hot.T - approach
 
         def gap(duty):
@@ -180,14 +186,14 @@ class Section:
         """
         import math as _m
 
-        fl, hot = self.fluid, self.hot_in
+        fl, hot = self.cold_fluid or self.fluid, self.hot_in
         span = hot.T - self.T_floor
         if not (_m.isfinite(flow) and flow > 0 and span > 0):
             return 0.5 * Q_hi
         colds = self.colds_of(0.5 * Q_hi)
         C_cold = sum(f * (fl.state_tp(hot.T, self.recuperator.cold_outlet_pressure(st.p)).h - st.h)
                      for st, f in colds if f > 0) / span
-        C_hot = self.recuperator.max_hot_duty(fl, hot, self.T_floor) / span
+        C_hot = self.recuperator.max_hot_duty(self.fluid, hot, self.T_floor) / span
         C_min, C_max = min(C_cold, C_hot), max(C_cold, C_hot)
         ntu = ua / (flow * C_min)
         r = C_min / C_max
@@ -199,7 +205,7 @@ class Section:
         return min(max(eps * C_min * span, 1e-6 * Q_hi), Q_hi * (1 - 1e-6))
 
     def effectiveness(self, duty):
-        return self.recuperator.effectiveness(self.fluid, self.hot_in, self.colds_of(duty), duty)
+        return self.recuperator.effectiveness(self.fluid, self.hot_in, self.colds_of(duty), duty, self.cold_fluid)
 
     def max_duty(self, limit_effectiveness):
         """Largest duty the second law allows: the hot stream cooled to the coldest inlet, or
@@ -561,6 +567,14 @@ def _without_round_off(losses, work):
     return {name: 0.0 if floor <= value < 0.0 else value for name, value in losses.items()}
 
 
+def _no_catalyst():
+    """The conversion result of a hydrogen cycle without catalyst: the product is normal hydrogen."""
+    from cycle.conversion import ConversionResult, ideal_work_basis
+    from properties.orthopara import NORMAL_PARA_FRACTION
+
+    return ConversionResult((), NORMAL_PARA_FRACTION, {}, ideal_work_basis((), NORMAL_PARA_FRACTION))
+
+
 def _combined_report(reports):
     reports = list(reports)
     if len(reports) == 1:
@@ -597,6 +611,14 @@ class Liquefier:
 
         self.scenario = sc = scenario
         self.fluid = fluid or get_fluid(sc.gas)
+        # Hydrogen with a catalyst: every stream is hydrogen of its own para fraction, on the
+        # ortho-para reference (cycle.conversion); the make-up gas is normal hydrogen.
+        self.conversion = self.makeup_fluid = None
+        if getattr(sc, "hydrogen_conversion", ()):
+            from cycle.conversion import Conversion
+
+            self.conversion = Conversion(sc.hydrogen_conversion)
+            self.fluid = self.makeup_fluid = Conversion.frozen(0.25)
         self.T0 = sc.ambient_temperature
         self.compressor = Compressor(sc.compressor, sc.aftercooler.outlet_temperature, sc.ambient_temperature)
         self.aftercooler = Aftercooler(sc.aftercooler.outlet_temperature, sc.aftercooler.pressure_drop)
@@ -690,9 +712,10 @@ class Liquefier:
                                     f"low_pressure ({vapour.T:.2f} K), got {T:g} K")
         return hot_in, liquid, vapour
 
-    def _check_inversion(self, hot, return_p, precooled=False):
-        """No liquid if throttling from the recuperator's hot end warms the gas."""
-        fl = self.fluid
+    def _check_inversion(self, hot, return_p, precooled=False, fluid=None):
+        """No liquid if throttling from the recuperator's hot end warms the gas (``fluid``: that
+        of the stream ``hot``, where it is not the cycle's)."""
+        fl = fluid or self.fluid
         T_inv = fl.max_inversion_temperature()
         if hot.T >= T_inv:
             if precooled:
@@ -807,13 +830,15 @@ class Liquefier:
 
         return yield_of, flow_of
 
-    def _solve_cold_end(self, rec, hot_in, liquid, vapour, xtol, maxiter):
+    def _solve_cold_end(self, rec, hot_in, liquid, vapour, xtol, maxiter, hot_fluid=None, cold_fluid=None):
         """Solve the recuperator whose high-pressure outlet feeds the valve into the separator.
 
-        Returns (duty, profile, solve report, yield, effectiveness, critical effectiveness,
-        compressor flow [kg/s] or None); raises NoLiquefactionError where the yield is not positive.
+        ``hot_fluid`` and ``cold_fluid`` are its two sides' fluids where they are not the
+        cycle's (hydrogen streams of their own para fractions).  Returns (duty, profile, solve
+        report, yield, effectiveness, critical effectiveness, compressor flow [kg/s] or None);
+        raises NoLiquefactionError where the yield is not positive.
         """
-        fl, sc = self.fluid, self.scenario
+        fl, sc = hot_fluid or self.fluid, self.scenario
         yield_at, flow_at = self._yield_function(liquid, vapour)
 
         def yield_of(duty):
@@ -825,7 +850,7 @@ class Liquefier:
                 f"make at this production, even with a perfect {rec.key.replace('_', ' ')}; lower heat_leak or "
                 f"raise the production")
         section = Section(fl, rec, hot_in, lambda d: [(vapour, 1.0 - yield_of(d))], vapour.T,
-                          flow_of=lambda d: flow_at(yield_of(d)))
+                          flow_of=lambda d: flow_at(yield_of(d)), cold_fluid=cold_fluid)
         lowest = max(0.0, hot_in.h - vapour.h)  # below this duty no liquid (liquid-rate target)
         duty, prof, report = solve_section(section, lambda d: flow_at(yield_of(d)), lowest, xtol, maxiter)
         y = yield_of(duty)
@@ -833,7 +858,7 @@ class Liquefier:
         m_fixed, _ = self._production(liquid)
         q0 = sc.heat_leak / m_fixed if m_fixed else 0.0
         # y = 0 when the high-pressure outlet leaves with h = hg - q (all the flow returns).
-        eps_crit = rec.effectiveness(fl, hot_in, [(vapour, 1.0)], hot_in.h - vapour.h + q0)
+        eps_crit = rec.effectiveness(fl, hot_in, [(vapour, 1.0)], hot_in.h - vapour.h + q0, cold_fluid)
         if y <= 0:
             raise NoLiquefactionError(self._critical_message(eps, eps_crit, rec.key.replace("_", " ")))
         return duty, prof, report, y, eps, eps_crit, flow_at(y)
@@ -883,11 +908,16 @@ class Liquefier:
 
     def _finish(self, *, y, m, streams, compressions, after_duty, makeup, liquid, throttle_outlet,
                 recuperators, reports, losses, valves, precooling_work=0.0, precooler_duty=0.0, coolant=None,
-                warn=(), receiver_vapour_fraction=None, coolant_density=None, cooler_capacity=None):
+                warn=(), receiver_vapour_fraction=None, coolant_density=None, cooler_capacity=None,
+                valve_fluid=None, ideal_work=None, conversion=None):
         """Assemble the :class:`~cycle.results.CycleResult`.
 
         ``valves`` are ``(inlet state, outlet pressure [Pa], flow per kg compressed)`` in flow
-        order; each is sized for its critical mass flux (:func:`cycle.orifice.size_valve`).
+        order; each is sized for its critical mass flux (:func:`cycle.orifice.size_valve`), with
+        ``valve_fluid`` where the valves' fluid is not the cycle's.  ``ideal_work`` [J/kg liquid]
+        is the ideal work of liquefaction of the product made, where that is not the cycle
+        fluid's (hydrogen with a catalyst); ``conversion`` is its
+        :class:`~cycle.conversion.ConversionResult`.
         """
         from cycle.orifice import size_valve
 
@@ -949,12 +979,13 @@ class Liquefier:
             warn.append(text)
         states = [StreamState(k, name, st, flow) for k, (name, st, flow) in enumerate(streams, start=1)]
         cd = sc.valve.discharge_coefficient
-        sized = tuple(size_valve(self.fluid, inlet, p_out, None if m is None else m * flow,
+        sized = tuple(size_valve(valve_fluid or self.fluid, inlet, p_out, None if m is None else m * flow,
                                  **({} if cd is None else {"discharge_coefficient": cd}))
                       for inlet, p_out, flow in valves)
         return CycleResult(
             scenario=sc, liquid_yield=y, work_per_kg_compressed=comp_work,
-            ideal_work_per_kg_liquid=ideal_work_of_liquefaction(self.fluid, self.T0, sc.low_pressure),
+            ideal_work_per_kg_liquid=(ideal_work_of_liquefaction(self.fluid, self.T0, sc.low_pressure)
+                                      if ideal_work is None else ideal_work),
             heat_leak_per_kg_compressed=q_leak, compressor_heat_rejected=comp_heat,
             aftercooler_duty=after_duty, liquid_density=liquid.density, recuperators=recuperators,
             states=states, throttle_outlet=throttle_outlet, compressor_flow=m,
@@ -967,7 +998,8 @@ class Liquefier:
             gas_work_per_kg_compressed=gas_work, drive_loss_per_kg_compressed=drive,
             normal_density=self.reference_density("normal_volume_flow"), valves=sized,
             precooler_load=m * precooler_duty if m is not None and sc.layout == "precooled" else None,
-            coolant_liquid_density=coolant_density, cooler_capacity=cooler_capacity)
+            coolant_liquid_density=coolant_density, cooler_capacity=cooler_capacity,
+            conversion=conversion if conversion is not None or sc.gas != "Hydrogen" else _no_catalyst())
 
     def _warm_end(self, ret, y):
         """Make-up mixing, compression and aftercooling of the return gas ``ret`` (flow 1 - y).
@@ -976,8 +1008,8 @@ class Liquefier:
         numbered streams so far, and the exergy losses of compressor and mixing).
         """
         fl = self.fluid
-        makeup = self.mixer.makeup_state(fl)
-        suction = self.mixer.run(fl, ret, 1.0 - y, y)
+        makeup = self.mixer.makeup_state(self.makeup_fluid or fl)
+        suction = self.mixer.run(fl, ret, 1.0 - y, y, self.makeup_fluid)
         comp = self.compressor.run(fl, suction, self.scenario.high_pressure)
         hp_in, after_duty = self.aftercooler.run(fl, comp.outlet)
         streams = [("compressor suction", suction, 1.0)] + [(label, st, 1.0) for label, st in comp.states]

@@ -164,53 +164,117 @@ class PrecooledLindeHampson(Liquefier):
         return replace(result, cooler_capacity=cap)
 
     def _solve_at_temperature(self, xtol, maxiter):
-        fl, sc = self.fluid, self.scenario
+        conv = self.conversion
+        if conv is None:
+            return self._solve_pass(xtol, maxiter, None)
+        # Hydrogen with a catalyst: the loop's para fractions are a fixed point of the whole
+        # solve.  It is met at the first pass where the catalyst places fix them; with the
+        # catalyst in the cold recuperator it is found by SciPy's root-finder (Powell's hybrid
+        # method) on the change of the fractions over one pass.
+        import numpy as np
+        from scipy.optimize import root
+
+        from cycle.conversion import FRACTION_TOLERANCE, PASSES
+
+        T_boil = self.fluid.saturation_temperature(self.scenario.low_pressure)
+        start = conv.first_guess(self.scenario.precooling.temperature, T_boil)
+        passes = {}
+
+        def solved(z):
+            key = tuple(float(v) for v in z)
+            if key not in passes:
+                passes[key] = self._solve_pass(xtol, maxiter, key)
+            return passes[key]
+
+        def change(key):
+            return max(abs(a - b) for a, b in zip(solved(key)[1], key))
+
+        if change(start) > FRACTION_TOLERANCE:
+            root(lambda z: np.array(solved(z)[1]) - z, np.array(solved(start)[1]), method="hybr",
+                 options={"xtol": 0.1 * FRACTION_TOLERANCE, "maxfev": PASSES})
+        best = min(passes, key=change)
+        result = passes[best][0]
+        if change(best) > FRACTION_TOLERANCE:
+            result.warnings.append(
+                f"hydrogen_conversion: the para fractions of the loop are off their steady state by "
+                f"{change(best):.2e} (more than the {FRACTION_TOLERANCE:g} they are solved to) after {len(passes)} "
+                f"passes of the solve")
+        return result
+
+    def _solve_pass(self, xtol, maxiter, fractions):
+        """One solve of the cycle; with a catalyst (``fractions``, the loop's (x_hot, x_feed) of
+        :class:`cycle.conversion.Conversion`) also the fractions that follow from it."""
+        sc = self.scenario
         warm, cold = self.warm, self.cold
+        conv = self.conversion
         hp_in, liquid, vapour = self._fixed_states(self.suction_pressure)
         self._check_precooling(vapour)
+        T_pc = sc.precooling.temperature
+        hot_fl = feed_fl = self.fluid
+        if fractions is not None:
+            x_hot, x_feed = fractions
+            feed_fl, hot_fl = conv.frozen(x_feed), conv.passage_fluid(x_hot)
+            vapour = feed_fl.saturated_vapour(sc.low_pressure)
+            x_product = conv.product_fraction(x_feed, feed_fl, sc.low_pressure)
+            liquid = conv.frozen(x_product).saturated_liquid(sc.low_pressure)
         # The pressure between the recuperators: the warm one's high-pressure outlet.  With a
         # geometry it follows from the warm recuperator's friction, which is solved after the cold
         # one (the precooler fixes the cold one's hot inlet): passes until it settles.
         p_mid_hot = warm.hot_outlet_pressure(hp_in.p)
         for _ in range(MID_PRESSURE_PASSES):
-            cold_in = self._keyed_state("precooling.temperature", sc.precooling.temperature, p_mid_hot)
-            self._check_inversion(cold_in, cold.cold_outlet_pressure(vapour.p), precooled=True)
+            if fractions is None:
+                pc_out = cold_in = self._keyed_state("precooling.temperature", T_pc, p_mid_hot)
+            else:
+                pc_out = cold_in = conv.frozen(x_hot).state_tp(T_pc, p_mid_hot)
+                if "continuous" in conv:  # onto the catalyst: to equilibrium at the inlet, adiabatically
+                    cold_in = hot_fl.state_ph(p_mid_hot, pc_out.h)
+            self._check_inversion(cold_in, cold.cold_outlet_pressure(vapour.p), precooled=True, fluid=hot_fl)
             # Cold section first: the precooler fixes its hot inlet.
-            duty_c, prof_c, report_c, y, eps_c, eps_crit, m = self._solve_cold_end(cold, cold_in, liquid, vapour,
-                                                                                  xtol, maxiter)
+            duty_c, prof_c, report_c, y, eps_c, eps_crit, m = self._solve_cold_end(
+                cold, cold_in, liquid, vapour, xtol, maxiter, hot_fluid=hot_fl, cold_fluid=feed_fl)
             p_mid_cold = float(prof_c.cold_p[-1])
-            mid_return = fl.state_ph(p_mid_cold, vapour.h + duty_c / (1.0 - y))
+            mid_return = feed_fl.state_ph(p_mid_cold, vapour.h + duty_c / (1.0 - y))
+            if fractions is not None:  # the suction's para fraction follows from the yield
+                from properties.orthopara import NORMAL_PARA_FRACTION
+
+                self.fluid = conv.frozen((1.0 - y) * x_feed + y * NORMAL_PARA_FRACTION)
+                hp_in, _, _ = self._fixed_states(self.suction_pressure)
 
             # Warm section: both flows are known now.
-            warm_section = Section(fl, warm, hp_in, lambda d: [(mid_return, 1.0 - y)], mid_return.T,
-                                   flow_of=lambda d: m)
+            warm_section = Section(self.fluid, warm, hp_in, lambda d: [(mid_return, 1.0 - y)], mid_return.T,
+                                   flow_of=lambda d: m, cold_fluid=feed_fl if fractions is not None else None)
             duty_w, prof_w, report_w = solve_section(warm_section, lambda d: m, 0.0, xtol, maxiter)
             settled = float(prof_w.hot_p[0])
             if warm.geometry is None or abs(settled - p_mid_hot) <= MID_PRESSURE_TOLERANCE:
                 p_mid_hot = settled
                 break
             p_mid_hot = settled
+        fl = self.fluid
         eps_w = warm_section.effectiveness(duty_w)
         warm_out = fl.state_ph(p_mid_hot, hp_in.h - duty_w)
-        if warm_out.h < cold_in.h:
+        if (warm_out.h < pc_out.h) if fractions is None else (warm_out.T < T_pc):
             raise ScenarioError(
-                f"precooling.temperature {sc.precooling.temperature:g} K is above what the warm recuperator "
+                f"precooling.temperature {T_pc:g} K is above what the warm recuperator "
                 f"already reaches ({warm_out.T:.2f} K): the precooler would have to heat; lower "
                 f"precooling.temperature or give the warm recuperator less size")
-        _, precooler_duty = self.precooler.run(fl, warm_out)
+        if fractions is None:
+            _, precooler_duty = self.precooler.run(fl, warm_out)
+        else:
+            precooler_duty = warm_out.h - pc_out.h
         supply = self.precooler.supply(precooler_duty, m)
 
-        cold_out = fl.state_ph(float(prof_c.hot_p[0]), cold_in.h - duty_c)
-        valve_out = self.valve.run(fl, cold_out)
-        ret = fl.state_ph(float(prof_w.cold_p[-1]), mid_return.h + duty_w / (1.0 - y))
+        cold_out = hot_fl.state_ph(float(prof_c.hot_p[0]), cold_in.h - duty_c)
+        valve_in = cold_out if fractions is None else feed_fl.state_ph(cold_out.p, cold_out.h)
+        valve_out = self.valve.run(feed_fl, valve_in)
+        ret = feed_fl.state_ph(float(prof_w.cold_p[-1]), mid_return.h + duty_w / (1.0 - y))
         if warm.geometry is not None or cold.geometry is not None:
             self.mixer = MakeupMixer(ret.p, sc.ambient_temperature, sc.low_pressure)
         makeup, comp, hp_in, after_duty, streams, losses = self._warm_end(ret, y)
         streams += [
             ("aftercooler outlet, warm recuperator high-pressure inlet", hp_in, 1.0),
             ("warm recuperator high-pressure outlet, precooler inlet", warm_out, 1.0),
-            ("precooler outlet, cold recuperator high-pressure inlet", cold_in, 1.0),
-            ("cold recuperator high-pressure outlet, valve inlet", cold_out, 1.0),
+            ("precooler outlet, cold recuperator high-pressure inlet", pc_out, 1.0),
+            ("cold recuperator high-pressure outlet, valve inlet", valve_in, 1.0),
             ("valve outlet, separator inlet", valve_out, 1.0),
             ("liquid product", liquid, y),
             ("separator vapour, cold recuperator low-pressure inlet", vapour, 1.0 - y),
@@ -223,26 +287,80 @@ class PrecooledLindeHampson(Liquefier):
         losses.update({
             "warm_recuperator": self._exergy_loss([(hp_in, 1.0), (mid_return, 1.0 - y)],
                                                   [(warm_out, 1.0), (ret, 1.0 - y)]),
-            "precooler": self._exergy_loss([(warm_out, 1.0)], [(cold_in, 1.0)], [(-precooler_duty, T_sink)]),
+            "precooler": self._exergy_loss([(warm_out, 1.0)], [(pc_out, 1.0)], [(-precooler_duty, T_sink)]),
             ("coolant" if supply.coolant is not None else "precooling_refrigerator"):
                 supply.work - refrigeration_exergy(precooler_duty, T_sink, self.T0),
             "cold_recuperator": self._exergy_loss([(cold_in, 1.0), (vapour, 1.0 - y)],
                                                   [(cold_out, 1.0), (mid_return, 1.0 - y)]),
         })
-        losses.update(self._cold_end_losses(y, q_leak, cold_out, valve_out, 1.0, liquid, vapour))
+        losses.update(self._cold_end_losses(y, q_leak, valve_in, valve_out, 1.0, liquid, vapour))
+        conversion = None
+        if fractions is not None:
+            conversion = self._conversion_accounts(losses, y, fl, warm_out, pc_out, cold_in, prof_c, hot_fl,
+                                                   feed_fl, liquid, vapour)
         warn = []
         if supply.lower_bound:
             warn.append(f"the coolant {sc.precooling.coolant} is charged at its ideal work of liquefaction, "
                         f"{supply.coolant_work / 1e3:.1f} kJ/kg: a lower bound on the precooling work; give "
                         f"precooling.coolant_work for the real cost")
-        return self._finish(
+        result = self._finish(
             y=y, m=m, streams=streams, compressions=[(comp, 1.0)], after_duty=after_duty, makeup=makeup,
             liquid=liquid, throttle_outlet=valve_out,
             recuperators={"warm_recuperator": self._recuperator_result(duty_w, prof_w, eps_w, None),
                           "cold_recuperator": self._recuperator_result(duty_c, prof_c, eps_c, eps_crit)},
             reports={"cold_recuperator": report_c, "warm_recuperator": report_w}, losses=losses,
             precooling_work=supply.work, precooler_duty=precooler_duty, coolant=supply.coolant, warn=warn,
-            valves=[(cold_out, sc.low_pressure, 1.0)], coolant_density=supply.coolant_density)
+            valves=[(valve_in, sc.low_pressure, 1.0)], coolant_density=supply.coolant_density,
+            valve_fluid=feed_fl, conversion=conversion,
+            ideal_work=None if conversion is None else self._ideal_work(liquid))
+        if fractions is None:
+            return result
+        return result, conv.settled(x_hot, x_feed, y, cold_out.T)
+
+    def _ideal_work(self, liquid):
+        """Ideal work of liquefaction [J/kg] from normal make-up gas at ambient temperature and
+        low pressure to the product ``liquid`` as made: W = T0 (s_gas - s_liq) - (h_gas - h_liq)."""
+        gas = self.makeup_fluid.state_tp(self.T0, self.scenario.low_pressure)
+        return self.T0 * (gas.s - liquid.s) - (gas.h - liquid.h)
+
+    def _conversion_accounts(self, losses, y, warm_fl, warm_out, pc_out, cold_in, prof_c, hot_fl, feed_fl, liquid,
+                             vapour):
+        """The conversion heat released at each catalyst place [J/kg compressed], and the exergy
+        the conversion itself destroys moved from the unit it happens in to its own line
+        ``ortho_para_conversion`` (changes ``losses``).  Returns the
+        :class:`~cycle.conversion.ConversionResult`."""
+        from cycle.conversion import ConversionResult, ideal_work_basis
+
+        conv, T0, p_low = self.conversion, self.T0, self.scenario.low_pressure
+        heat, destroyed = {}, {}
+        T_pc = pc_out.T
+        if "precooler" in conv:  # the stream converted at the precooling temperature
+            before = warm_fl.state_tp(T_pc, pc_out.p)
+            heat["precooler"] = before.h - pc_out.h
+            destroyed["precooler"] = T0 * conv.conversion_loss(before, pc_out, T_pc)
+        if "continuous" in conv:
+            # At the passage inlet (adiabatic, where the stream arrives away from equilibrium), then
+            # zone by zone: the para fraction times the ortho-to-para heat at each zone's mean.
+            from properties.orthopara import get_ortho_para_hydrogen
+
+            model = get_ortho_para_hydrogen()
+            q = (cold_in.para_fraction - pc_out.para_fraction) * model.conversion_heat(T_pc, pc_out.p, 0.0, 1.0)
+            T, p = prof_c.hot_T, prof_c.hot_p
+            x = [hot_fl.fraction(float(t)) for t in T]
+            for k in range(len(T) - 1):  # k = 0 is the cold end
+                Tm, pm = 0.5 * float(T[k] + T[k + 1]), 0.5 * float(p[k] + p[k + 1])
+                q += (x[k] - x[k + 1]) * model.conversion_heat(Tm, pm, 0.0, 1.0)
+            heat["continuous"] = q
+            destroyed["cold_recuperator"] = T0 * (cold_in.s - pc_out.s)  # the inlet step; zones are at equilibrium
+        if "separator" in conv:  # the liquid converted in the pool, at the feed's boiling point
+            unconverted = feed_fl.saturated_liquid(p_low)
+            heat["separator"] = y * (unconverted.h - liquid.h)
+            destroyed["separator"] = T0 * conv.conversion_loss(unconverted, liquid, vapour.T, y)
+        for unit, value in destroyed.items():
+            losses[unit] -= value
+        losses["ortho_para_conversion"] = sum(destroyed.values())
+        return ConversionResult(conv.places, liquid.para_fraction, heat,
+                                ideal_work_basis(conv.places, liquid.para_fraction))
 
 
 class DualPressureLindeHampson(Liquefier):

@@ -159,6 +159,17 @@ def ts_data(result):
     from properties import get_fluid
 
     fluid = get_fluid(result.scenario.gas)
+    fluid_of = None
+    if result.conversion is not None and result.conversion.places:
+        # Hydrogen with a catalyst: each path in the fluid of its own para fraction, a
+        # conversion (the fraction changes along the path) as a straight line; the saturation
+        # curve of the separator's feed.
+        from properties.hydrogen_stream import frozen_hydrogen
+
+        def fluid_of(a, b):
+            return frozen_hydrogen(a.para_fraction) if a.para_fraction == b.para_fraction else None
+
+        fluid = frozen_hydrogen(result.throttle_outlet.para_fraction)
     by_name = {st.name: st.state for st in result.states}
     names = [st.name for st in result.states]
     isothermal = result.scenario.compressor.isothermal_efficiency is not None
@@ -168,12 +179,15 @@ def ts_data(result):
     data.critical = (crit.s, crit.T)
     for kind, a_name, b_name in _edges(names):
         a, b = by_name[a_name], by_name[b_name]
-        if kind == "compression":
-            s, T = _compression(fluid, a, b, isothermal)
+        path_fluid = fluid if fluid_of is None else fluid_of(a, b)
+        if path_fluid is None:
+            s, T = np.array([a.s, b.s]), np.array([a.T, b.T])
+        elif kind == "compression":
+            s, T = _compression(path_fluid, a, b, isothermal)
         elif kind == "isobar":
-            s, T = _isobar(fluid, a, b)
+            s, T = _isobar(path_fluid, a, b)
         elif kind == "isenthalp":
-            s, T = _isenthalp(fluid, a, b)
+            s, T = _isenthalp(path_fluid, a, b)
         else:
             s, T = np.array([a.s, b.s]), np.array([a.T, b.T])
         data.paths.append((kind, f"{a_name} -> {b_name}", s, T))

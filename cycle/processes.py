@@ -260,7 +260,8 @@ def _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones):
     return frac, q, p_hot, hot_T
 
 
-def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out, cold_flow, duty, zones):
+def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out, cold_flow, duty, zones,
+                        cold_fluid=None):
     """March a counterflow exchanger in ``zones`` equal-duty zones.
 
     Pressure falls on each side in proportion to the duty passed (a modelling choice:
@@ -283,6 +284,9 @@ def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out,
         Heat passed from hot to cold [J per kg of compressor flow].
     zones : int
         Number of equal-duty zones.
+    cold_fluid : properties.Fluid, optional
+        The cold stream's fluid where it differs from the hot stream's (hydrogen of another
+        para fraction); default ``fluid``.
 
     Returns
     -------
@@ -291,7 +295,7 @@ def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out,
     frac, q, p_hot, hot_T = _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones)
     h_cold = cold_in.h + q / cold_flow
     p_cold = cold_in.p + frac * (cold_p_out - cold_in.p)
-    cold_T = np.insert(fluid.temperatures_ph(p_cold[1:], h_cold[1:]), 0, cold_in.T)
+    cold_T = np.insert((cold_fluid or fluid).temperatures_ph(p_cold[1:], h_cold[1:]), 0, cold_in.T)
     return ExchangerProfile(q, hot_T, cold_T, p_hot, p_cold)
 
 

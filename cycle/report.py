@@ -75,13 +75,18 @@ def summary_sections(result):
     if precooled:
         perf += [("  of which compressor", number(s["compressor_work_kJ_per_kg_liquid"], "{:.0f}"), "kJ/kg"),
                  ("  of which precooling", number(s["precooling_work_kJ_per_kg_liquid"], "{:.0f}"), "kJ/kg")]
+    perf.append(("ideal work of liquefaction", number(s["ideal_work_kJ_per_kg_liquid"], "{:.1f}"), "kJ/kg"))
+    conv = result.conversion
+    if conv is not None:
+        perf.append(("  for the product as made", product_words(conv), ""))
     perf += [
-        ("ideal work of liquefaction", number(s["ideal_work_kJ_per_kg_liquid"], "{:.1f}"), "kJ/kg"),
         ("figure of merit", number(s["figure_of_merit"], "{:.4f}"), ""),
         ("throttle outlet temperature", number(s["throttle_outlet_temperature_K"], "{:.2f}"), "K"),
         ("throttle outlet quality (vapour fraction)", number(s["throttle_outlet_quality"], "{:.4f}"), ""),
     ]
     sections = [("Performance", perf)]
+    if conv is not None:
+        sections.append(("Ortho-para hydrogen", _conversion_rows(conv, s)))
     sections.append(("Compressor", _compressor_rows(result, s)))
     if precooled:
         pc = sc.precooling
@@ -181,6 +186,38 @@ def summary_sections(result):
     return sections
 
 
+# Where each catalyst place's conversion heat goes, in words.
+CONVERSION_HEAT_ROWS = {
+    "precooler": "  in the precooler (to the precooling)",
+    "continuous": "  in the cold recuperator (to return gas)",
+    "separator": "  in the separator (boils off product)",
+}
+
+
+def product_words(conv):
+    """The product the ideal work is for, in a few words: normal, equilibrium or its para fraction."""
+    if not conv.places:
+        return "normal H2"
+    if "separator" in conv.places:
+        return "equilibrium"
+    return f"para {conv.product_para_fraction:.4f}"
+
+
+def _conversion_rows(conv, s):
+    """Hydrogen: where the catalyst sits, the product's para fraction, the conversion heat and
+    what self-conversion boils off in storage."""
+    rows = [("catalyst", ", ".join(conv.places) if conv.places else "none", "")]
+    rows.append(("product para fraction", number(s["product_para_fraction"], "{:.4f}"), ""))
+    rows.append(("conversion heat, cold box (per kg liquid)",
+                 number(s["conversion_heat_kJ_per_kg_liquid"], "{:.1f}"), "kJ/kg"))
+    y = s["liquid_yield"]
+    rows += [(CONVERSION_HEAT_ROWS[place], number(q / y / 1e3, "{:.1f}"), "kJ/kg") for place, q in conv.heat.items()]
+    rows += [("stored liquid lost to self-conversion, 24 h",
+              number(100.0 * s["storage_loss_fraction_24h"], "{:.2f}"), "%"),
+             ("  after 100 h", number(100.0 * s["storage_loss_fraction_100h"], "{:.2f}"), "%")]
+    return rows
+
+
 def _compressor_rows(result, s):
     """The compressor block: model, flows at suction and normal conditions, powers, hottest discharge."""
     spec = result.scenario.compressor
@@ -271,10 +308,17 @@ def format_result(result):
     out += ["", "Solve"] + [textwrap.fill(line, WIDTH, initial_indent="  ", subsequent_indent="    ")
                             for line in solve_lines(result)]
     out += ["", "Streams (flow per kg of compressor flow)", format_states(result)]
+    if result.conversion is not None and result.conversion.places:
+        out.append(textwrap.fill(ORTHO_PARA_STATES_NOTE, WIDTH, initial_indent="  ", subsequent_indent="    "))
     if result.warnings:
         out += ["", "Warnings"] + [textwrap.fill(w, WIDTH, initial_indent="  - ", subsequent_indent="    ")
                                    for w in result.warnings]
     return "\n".join(out)
+
+
+ORTHO_PARA_STATES_NOTE = ("para: the para fraction of each stream; h and s are on the common ortho-para "
+                          "reference (parahydrogen's saturated liquid at 1 atm is zero; normal hydrogen sits "
+                          "about 526 kJ/kg and 9.1 kJ/(kg K) above it), see docs/ortho-para-hydrogen.md")
 
 
 def solve_lines(result):
@@ -293,7 +337,14 @@ def solve_lines(result):
         else:
             lines.append(f"{label}: NOT converged after {rep.iterations} iterations: {rep.achieved:.6g}{unit} against "
                          f"{rep.target:.6g}{unit} asked (see Warnings)")
-    lines.append(f"energy balance of the whole plant closes to {abs(result.energy_balance_residual):.0e} of the work")
+    balance = f"energy balance of the whole plant closes to {abs(result.energy_balance_residual):.0e} of the work"
+    conv = result.conversion
+    if conv is not None and conv.heat:
+        from cycle.conversion import WHERE
+
+        parts = ", ".join(f"{q / 1e3:.2f} kJ/kg {WHERE[place]}" for place, q in conv.heat.items())
+        balance += f"; it counts the ortho-para conversion heat released, per kg compressed: {parts}"
+    lines.append(balance)
     return lines
 
 
@@ -324,6 +375,7 @@ STATE_COLUMNS = [
     ("h [kJ/kg]", "enthalpy_kJ_per_kg", "{:.2f}"),
     ("s [kJ/kg K]", "entropy_kJ_per_kg_K", "{:.4f}"),
     ("x [-]", "quality", "{:.4f}"),
+    ("para [-]", "para_fraction", "{:.4f}"),
     ("flow [-]", "flow_per_kg_compressed", "{:.4f}"),
     ("flow [kg/h]", "mass_flow_kg_per_h", "{:.3f}"),
 ]

@@ -185,6 +185,9 @@ class CycleResult:
         Density of the bath coolant as it is fed, saturated liquid [kg/m3].
     cooler_capacity : float or None
         Capacity of a precooler given by its capacity curve at the precooling temperature [W].
+    conversion : cycle.conversion.ConversionResult or None
+        Gas hydrogen: the ortho-para conversion (catalyst places, product para fraction,
+        conversion heats, what the ideal work is for); None for other gases.
     """
 
     scenario: object
@@ -216,6 +219,7 @@ class CycleResult:
     precooler_load: Optional[float] = None
     coolant_liquid_density: Optional[float] = None
     cooler_capacity: Optional[float] = None
+    conversion: Optional[object] = None
 
     @property
     def suction(self):
@@ -314,6 +318,16 @@ class CycleResult:
         }
         if self.coolant_per_kg_compressed is not None:
             out["coolant_kg_per_kg_liquid"] = self.coolant_per_kg_compressed / y
+        if self.conversion is not None:
+            from properties.orthopara import storage_loss_fraction
+
+            x = self.conversion.product_para_fraction
+            out.update({
+                "product_para_fraction": x,
+                "conversion_heat_kJ_per_kg_liquid": self.conversion.total_heat / y / 1e3,
+                "storage_loss_fraction_24h": storage_loss_fraction(24.0, x),
+                "storage_loss_fraction_100h": storage_loss_fraction(100.0, x),
+            })
         for name, rec in self.recuperators.items():
             out.update({
                 f"{name}_effectiveness": rec.effectiveness,
@@ -423,6 +437,8 @@ class CycleResult:
                 "phase": s.phase,
                 "flow_per_kg_compressed": st.flow,
             }
+            if getattr(s, "para_fraction", None) is not None:  # hydrogen with a catalyst
+                row["para_fraction"] = s.para_fraction
             if self.compressor_flow is not None:
                 row["mass_flow_kg_per_h"] = st.flow * self.compressor_flow * 3600.0
             rows.append(row)
@@ -483,6 +499,9 @@ def summary_keys(scenario):
     coolant = scenario.precooling is not None and scenario.precooling.coolant is not None
     if coolant:
         keys.append("coolant_kg_per_kg_liquid")
+    if scenario.gas == "Hydrogen":
+        keys += ["product_para_fraction", "conversion_heat_kJ_per_kg_liquid", "storage_loss_fraction_24h",
+                 "storage_loss_fraction_100h"]
     names = ["warm_recuperator", "cold_recuperator"] if scenario.layout == "precooled" else ["recuperator"]
     for name in names:
         keys += [f"{name}_{k}" for k in ("effectiveness", "critical_effectiveness", "min_approach_K",
@@ -525,7 +544,7 @@ def summary_keys(scenario):
 
 def loss_label(name):
     """Words for an exergy-loss key: ``make_up_mixing`` -> ``make-up mixing``."""
-    return name.replace("make_up", "make-up").replace("_", " ")
+    return name.replace("make_up", "make-up").replace("ortho_para", "ortho-para").replace("_", " ")
 
 
 def _positive_or_none(x):

@@ -209,6 +209,7 @@ class Scenario:
     cold_recuperator: Optional[RecuperatorSpec] = None
     dual_pressure: Optional[DualPressureSpec] = None
     valve: ValveSpec = ValveSpec()
+    hydrogen_conversion: tuple = ()
     source: dict = field(default_factory=dict, compare=False, repr=False)
 
     @property
@@ -293,6 +294,7 @@ SCHEMA = {
         },
     },
     "heat_leak": "power",
+    "hydrogen_conversion": "text",
     "valve": {
         "discharge_coefficient": "number",
     },
@@ -604,11 +606,24 @@ def parse_scenario(data):
         valve = ValveSpec(_between(cd, "valve.discharge_coefficient", 0, 1,
                                    given=data["valve"]["discharge_coefficient"]))
 
+    from cycle.conversion import parse_places
+
+    conversion = parse_places(data.get("hydrogen_conversion"), gas)
+    if conversion:
+        if precooling is None:
+            raise ScenarioError("hydrogen_conversion needs precooling: hydrogen is above its inversion temperature at "
+                                "ambient, and the catalyst places are those of a precooled cycle")
+        for key, spec in (("warm_recuperator", warm), ("cold_recuperator", cold)):
+            if spec.geometry is not None:
+                raise ScenarioError(f"{key}.geometry is not taken with hydrogen_conversion yet (the rating of a "
+                                    f"converting stream is not modelled); give {key} by effectiveness, "
+                                    f"min_approach or ua")
+
     return Scenario(gas=gas, ambient_temperature=T0, low_pressure=p_low, high_pressure=p_high,
                     compressor=compressor, aftercooler=aftercooler, recuperator=recuperator,
                     heat_leak=heat_leak, production=production, name=name, precooling=precooling,
                     warm_recuperator=warm, cold_recuperator=cold, dual_pressure=dual, valve=valve,
-                    source=dict(data))
+                    hydrogen_conversion=conversion, source=dict(data))
 
 
 def _parse_precooling(section, T_hot):

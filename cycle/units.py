@@ -187,6 +187,8 @@ def parse_quantity(value, dimension, gauge=True):
     unit = _SPELLINGS.get(unit, unit)
     if unit.lower() in _GAUGE:
         absolute = _GAUGE[unit.lower()]
+        if dimension == "dimensionless":
+            raise UnitError(f"expected a plain number, got {shown(value)} (a gauge pressure)")
         if dimension != "pressure":
             raise UnitError(f"expected a {dimension.replace('_', ' ')} (for example in {_EXAMPLE[dimension]}), got "
                             f"{shown(value)} (a gauge pressure)")

@@ -25,6 +25,7 @@ fixed T and p is lowest at the equilibrium para fraction.
 
 from dataclasses import dataclass, asdict
 from functools import lru_cache
+from typing import Optional
 import math
 import numbers
 
@@ -231,6 +232,9 @@ class OrthoParaState:
     phase : str
         Phase name as for :class:`properties.State` (that of parahydrogen where the two differ
         only in name, e.g. "gas" and "supercritical fluid").
+    quality : float or None
+        Vapour mass fraction of a saturated or two-phase state
+        (:mod:`properties.hydrogen_stream`), None in one phase.
     """
 
     T: float
@@ -240,6 +244,7 @@ class OrthoParaState:
     density: float
     para_fraction: float
     phase: str
+    quality: Optional[float] = None
 
     def to_dict(self):
         """Return the state as a plain dictionary of SI numbers."""

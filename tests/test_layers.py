@@ -11,7 +11,7 @@ ROOT = pathlib.Path(__file__).resolve().parents[1]
 # Rank of each module: a module may import only modules of its own rank or lower.
 RANK = {
     "cycle": 0, "properties": 0, "cycle.errors": 0, "cycle.units": 0, "cycle.safety": 0,
-    "cycle.scenario": 1, "cycle.processes": 1, "cycle.orifice": 1, "cycle.heat_transfer": 1,
+    "cycle.scenario": 1, "cycle.conversion": 1, "cycle.processes": 1, "cycle.orifice": 1, "cycle.heat_transfer": 1,
     "cycle.results": 2, "cycle.tube_exchanger": 2, "cycle.equipment": 2,
     "cycle.flowsheet": 3, "cycle.layouts": 3,
     "cycle.sweep": 4, "cycle.studies": 4,

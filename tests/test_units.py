@@ -95,3 +95,9 @@ def test_no_hint_where_the_rewritten_unit_would_not_fit_either():
     with pytest.raises(UnitError) as info:
         parse_quantity("32 C", "pressure")
     assert "did you mean" not in str(info.value)
+
+
+def test_a_gauge_unit_is_no_plain_number():
+    # Found by the hostile-input fuzz: "1 psig" as an efficiency raised a KeyError.
+    with pytest.raises(UnitError, match=r"^expected a plain number, got '1 psig' \(a gauge pressure\)$"):
+        parse_quantity("1 psig", "dimensionless")
