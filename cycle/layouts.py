@@ -290,8 +290,8 @@ class PrecooledLindeHampson(Liquefier):
             "precooler": self._exergy_loss([(warm_out, 1.0)], [(pc_out, 1.0)], [(-precooler_duty, T_sink)]),
             ("coolant" if supply.coolant is not None else "precooling_refrigerator"):
                 supply.work - refrigeration_exergy(precooler_duty, T_sink, self.T0),
-            "cold_recuperator": self._exergy_loss([(cold_in, 1.0), (vapour, 1.0 - y)],
-                                                  [(cold_out, 1.0), (mid_return, 1.0 - y)]),
+            "cold_recuperator": self._exergy_loss([(pc_out, 1.0), (vapour, 1.0 - y)],
+                                                  [(valve_in, 1.0), (mid_return, 1.0 - y)]),
         })
         losses.update(self._cold_end_losses(y, q_leak, valve_in, valve_out, 1.0, liquid, vapour))
         conversion = None
