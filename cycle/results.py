@@ -487,6 +487,18 @@ class CycleResult:
             "recuperator_profiles": {name: self.profile_rows(name) for name in self.recuperators},
             "compressor_stages": self.compressor_stage_rows(),
             "valves": [v.to_dict() for v in self.valves],
+            **({} if self.conversion is None else {"ortho_para": self.conversion_dict()}),
+        }
+
+    def conversion_dict(self):
+        """Gas hydrogen: the ortho-para conversion as plain numbers (``lhsim run --json``, key
+        ``ortho_para``)."""
+        c = self.conversion
+        return {
+            "catalyst": list(c.places),
+            "product_para_fraction": c.product_para_fraction,
+            "conversion_heat_kJ_per_kg_liquid": {place: q / self.liquid_yield / 1e3 for place, q in c.heat.items()},
+            "ideal_work_basis": c.ideal_work_basis,
         }
 
 

@@ -311,7 +311,7 @@ class FrozenHydrogen(_MixedHydrogen):
 
     def __init__(self, para_fraction):
         super().__init__()
-        self.model._check_fraction(para_fraction, "a frozen hydrogen stream")
+        self.model.check_fraction(para_fraction, "a frozen hydrogen stream")
         self.para_fraction = float(para_fraction)
 
     def __repr__(self):

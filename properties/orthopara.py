@@ -324,7 +324,8 @@ class OrthoParaHydrogen:
 
     # -- states -----------------------------------------------------------------------
 
-    def _check_fraction(self, x, asked):
+    def check_fraction(self, x, asked):
+        """Raise :class:`PropertyRangeError` (naming ``asked``) unless ``x`` is a para fraction, 0 to 1."""
         if not _is_number(x) or not 0.0 <= x <= 1.0:
             raise PropertyRangeError(f"hydrogen: no state at {asked}: the para fraction must be "
                                      f"from 0 to 1, got {x!r}")
@@ -332,7 +333,7 @@ class OrthoParaHydrogen:
     def _parts(self, T, p, x):
         """(para state or None, ortho state or None) at T, p for para fraction x."""
         asked = f"T = {T!r} K, p = {p!r} Pa, para fraction {x!r}"
-        self._check_fraction(x, asked)
+        self.check_fraction(x, asked)
         para = ortho = None
         try:
             if x > 0.0:
@@ -394,7 +395,7 @@ class OrthoParaHydrogen:
 
         x = para_fraction
         asked = f"p = {p!r} Pa, h = {h!r} J/kg, para fraction {x!r}"
-        self._check_fraction(x, asked)
+        self.check_fraction(x, asked)
         if not (_is_number(p) and math.isfinite(p) and p > 0) or not (_is_number(h) and math.isfinite(h)):
             raise PropertyRangeError(f"hydrogen: no state at {asked}: p must be above 0 and h a finite number")
         parts = [f for f, share in ((self._para, x), (self._ortho, 1.0 - x)) if share > 0.0]
@@ -484,7 +485,7 @@ def storage_loss_fraction(hours, para_fraction=NORMAL_PARA_FRACTION):
     if not _is_number(hours) or not math.isfinite(hours) or hours < 0:
         raise PropertyRangeError(f"storage time must be 0 h or more, got {hours!r}")
     model = get_ortho_para_hydrogen()
-    model._check_fraction(para_fraction, "storage loss")
+    model.check_fraction(para_fraction, "storage loss")
     x_o0 = 1.0 - para_fraction
     x_o = x_o0 / (1.0 + SELF_CONVERSION_RATE * x_o0 * hours)
     q = model.conversion_heat(STORAGE_TEMPERATURE, STORAGE_PRESSURE, 0.0, 1.0)  # per kg of ortho converted

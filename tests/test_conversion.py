@@ -259,3 +259,15 @@ def test_the_demo_sweep_compares_catalyst_places(tmp_path, capsys):
     assert y["separator"] < y["none"] and y["precooler, separator"] < y["none"]
     x = dict(zip(frame["hydrogen_conversion"], frame["product_para_fraction"]))
     assert x["none"] == 0.25 and math.isclose(x["separator"], 0.9975, abs_tol=5e-4)
+
+
+def test_the_json_carries_the_conversion(solved):
+    import json
+
+    out = json.loads(json.dumps(solved["both"].to_dict()))
+    op = out["ortho_para"]
+    assert op["catalyst"] == ["precooler", "separator"]
+    heats = op["conversion_heat_kJ_per_kg_liquid"]
+    assert sum(heats.values()) == pytest.approx(out["summary"]["conversion_heat_kJ_per_kg_liquid"], rel=1e-12)
+    assert "ortho_para_conversion" in out["exergy_losses_kJ_per_kg_liquid"]
+    assert "ortho_para" not in api.run(api.load("scenarios/nitrogen-bench.yaml")).to_dict()
