@@ -870,6 +870,12 @@ class Liquefier:
             return (f"no liquid: heat_leak {Q:g} W takes all the refrigeration this cycle makes at this "
                     f"production (the {key} effectiveness {eps:.4f} is above its critical value without "
                     f"the leak); lower heat_leak or raise the production")
+        if eps_crit >= 1.0 and self.conversion is not None and "continuous" in self.conversion:
+            return (f"no liquid: even a perfect {key} could not make liquid here (its critical effectiveness "
+                    f"would be {eps_crit:.4f}, above 1): with hydrogen_conversion continuous the whole flow converts "
+                    f"in the cold recuperator's passage (the para-rich return gas mixes in at the suction and "
+                    f"back-converts at the passage inlet), and that heat is more than the return gas can take; "
+                    f"precool colder, or put the catalyst in the precooler and the separator")
         if eps_crit >= 1.0:
             return (f"no liquid: even a perfect {key} could not make liquid here (its critical "
                     f"effectiveness would be {eps_crit:.4f}, above 1): the heat leak or the conditions take "
