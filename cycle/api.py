@@ -130,3 +130,36 @@ def optimize(source, vary, goal):
     from cycle.studies import optimize as _optimize
 
     return _optimize(_mapping(source), [(key, lo, hi) for key, (lo, hi) in vary.items()], goal)
+
+
+def uncertainty(source, out=None, workers=1, dask=None, overwrite=True):
+    """Run a scenario's ``uncertainty:`` section (:mod:`cycle.uncertainty`).
+
+    Parameters
+    ----------
+    source : str, os.PathLike or dict
+        Scenario file or mapping with an uncertainty section.
+    out : str or os.PathLike, optional
+        Results file (.csv or .parquet) to keep; default a temporary file.
+    workers : int
+        Local worker processes (1: this process).
+    dask : str, optional
+        ``"local"`` or a scheduler address.
+    overwrite : bool
+        Replace an ``out`` file made by another scenario (default True in notebooks).
+
+    Returns
+    -------
+    frame : pandas.DataFrame
+        One row per sample (the results file's columns).
+    stats : dict
+        Means, standard deviations, percentiles, the production margin and the sensitivity
+        indices (:func:`cycle.uncertainty.analyse`).
+    """
+    from cycle.uncertainty import run_uncertainty
+
+    data = _mapping(source)
+    with tempfile.TemporaryDirectory() as tmp:
+        path = pathlib.Path(out) if out is not None else pathlib.Path(tmp) / "uncertainty.csv"
+        return run_uncertainty(data, path, workers=workers, dask=dask, overwrite=overwrite, progress=False)
+

@@ -93,6 +93,28 @@ def _parser():
     sweep.add_argument("--max-points", type=int, default=None, metavar="N",
                        help="refuse a sweep of more than N points before computing any (default 1000000)")
 
+    margins = sub.add_parser(
+        "uncertainty", help="uncertain inputs in, production and power as distributions out, with what drives them",
+        description="Draw the samples of the scenario's uncertainty: section (a seeded Latin hypercube through "
+                    "each key's distribution), run each as a design point through the sweep runner (one row per "
+                    "sample in RESULTS, resumable as a sweep is), and print the mean, standard deviation, P5, P50 "
+                    "and P95 of liquid rate (or yield), work per kg liquid, compressor power and figure of merit; "
+                    "the chance of meeting uncertainty.target at a fixed compressor flow, or the compressor flow "
+                    "that meets a liquid-rate target with 90 and 95 % confidence; and the inputs that drive the "
+                    "spread (Spearman's rank correlation, scipy.stats.spearmanr).",
+        epilog=SAFETY_POINTER + "\n\nexit status: 0 the samples ran (failed samples say so in their status); "
+                          "2 invalid scenario or uncertainty section; 130 interrupted (results so far are kept).",
+        formatter_class=_Formatter)
+    margins.add_argument("scenario", metavar="SCENARIO.yaml", help="scenario file with an uncertainty: section")
+    margins.add_argument("--out", required=True, metavar="RESULTS", help="results file, .csv or .parquet")
+    margins.add_argument("--workers", type=int, default=None, metavar="N",
+                         help="local worker processes (default and most: the CPU count; 1 runs in this process)")
+    margins.add_argument("--dask", metavar="ADDRESS",
+                         help="run on a Dask distributed scheduler at ADDRESS, or 'local' to start one here")
+    margins.add_argument("--overwrite", action="store_true",
+                         help="replace an output file made by a different scenario")
+    margins.add_argument("--json", action="store_true", help="print the statistics as one JSON object and nothing else")
+
     compare = sub.add_parser(
         "compare", help="the same plant with several gases, ranked by figure of merit",
         description="Solve the scenario once per gas and rank the gases by figure of merit, with yield, "
@@ -149,7 +171,8 @@ def _fail(message, code=EXIT_INPUT):
 def main(argv=None):
     """Entry point of the ``lhsim`` console script; returns the exit status."""
     commands = {"run": _cmd_run, "gas": _cmd_gas, "sweep": _cmd_sweep, "compare": _cmd_compare,
-                "optimize": _cmd_optimize, "report": _cmd_report, "plot": _cmd_plot}
+                "optimize": _cmd_optimize, "report": _cmd_report, "plot": _cmd_plot,
+                "uncertainty": _cmd_uncertainty}
     try:  # a Ctrl-C from the first moment on is an interruption, not a traceback
         args = _parser().parse_args(argv)
         import warnings
@@ -375,6 +398,36 @@ def _cmd_sweep(args):
         return _fail(f"--out {args.out}: {err.strerror or err}")
     print(f"{outcome['points']} points in {outcome['path']} ({outcome['computed']} computed now; "
           f"{outcome['no_liquid']} made no liquid, {outcome['failed']} failed or invalid)", file=sys.stderr)
+    return 0
+
+
+def _cmd_uncertainty(args):
+    from cycle.errors import ScenarioError
+
+    if args.workers is not None and args.workers < 1:
+        return _fail(f"--workers must be 1 or more, got {args.workers}")
+    if args.workers is not None and args.dask is not None:
+        return _fail("give --workers or --dask, not both")
+    try:
+        data = _read(args.scenario)
+        from cycle.uncertainty import format_stats, run_uncertainty
+
+        try:
+            _, stats = run_uncertainty(data, args.out, workers=args.workers, dask=args.dask, overwrite=args.overwrite,
+                                       progress=None if not args.json else False)
+        except KeyboardInterrupt:
+            print(f"lhsim: interrupted; the samples finished so far are in {args.out}: run the same command "
+                  f"again to compute the rest", file=sys.stderr)
+            return 130
+    except ScenarioError as err:
+        return _fail(str(err))
+    except OSError as err:
+        return _fail(f"--out {args.out}: {err.strerror or err}")
+    if args.json:
+        print(json.dumps(_json_safe(stats), indent=2))
+    else:
+        print(format_stats(stats))
+        print(SHORT_CAUTION)
     return 0
 
 

@@ -484,6 +484,8 @@ def parse_scenario(data):
     """
     if not isinstance(data, dict):
         raise ScenarioError(f"a scenario must be a mapping of keys to values, got {type(data).__name__}")
+    # The uncertainty section belongs to lhsim uncertainty (cycle.uncertainty), which checks it.
+    data = {k: v for k, v in data.items() if k != "uncertainty"}
     _check_keys(data, SCHEMA)
 
     name = data.get("name") or ""

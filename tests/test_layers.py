@@ -14,7 +14,7 @@ RANK = {
     "cycle.scenario": 1, "cycle.conversion": 1, "cycle.processes": 1, "cycle.orifice": 1, "cycle.heat_transfer": 1,
     "cycle.results": 2, "cycle.tube_exchanger": 2, "cycle.equipment": 2,
     "cycle.flowsheet": 3, "cycle.layouts": 3,
-    "cycle.sweep": 4, "cycle.studies": 4,
+    "cycle.sweep": 4, "cycle.studies": 4, "cycle.uncertainty": 4,
     "cycle.plots": 5, "cycle.report": 5, "cycle.report_html": 5, "cycle.api": 5,
     "cycle.cli": 6,
 }
