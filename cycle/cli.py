@@ -63,8 +63,11 @@ def _parser():
                     "points that made no liquid or failed are marked along the bottom axis.",
         epilog=SAFETY_POINTER, formatter_class=_Formatter)
     plot.add_argument("results", metavar="RESULTS.csv", help="results of lhsim sweep (.csv or .parquet)")
-    plot.add_argument("--x", required=True, metavar="KEY")
-    plot.add_argument("--y", required=True, metavar="KEY")
+    plot.add_argument("--x", metavar="KEY")
+    plot.add_argument("--y", metavar="KEY")
+    plot.add_argument("--uncertainty", action="store_true",
+                      help="results of lhsim uncertainty: the distribution of the main output with the target "
+                           "and the inputs' sensitivity, instead of --x and --y")
     plot.add_argument("--by", metavar="KEY", help="one line per value of this column (e.g. gas)")
     plot.add_argument("--out", metavar="FILE",
                       help="image file, .png or .svg (default: both, named after the results and the keys)")
@@ -288,9 +291,24 @@ def _cmd_report(args):
 
     with open(args.scenario, encoding="utf-8") as handle:
         text = handle.read()
+    margins = None
+    data = _read(args.scenario)
+    if isinstance(data, dict) and data.get("uncertainty") is not None:
+        import pathlib
+        import tempfile
+
+        from cycle.uncertainty import run_uncertainty
+
+        print("lhsim: running the samples of the uncertainty section for the report's Margins section",
+              file=sys.stderr)
+        try:
+            with tempfile.TemporaryDirectory() as tmp:
+                margins = run_uncertainty(data, pathlib.Path(tmp) / "margins.csv", progress=False)
+        except ScenarioError as err:
+            return _fail(str(err))
     try:
         with open(args.out, "w", encoding="utf-8") as handle:
-            handle.write(build_report(result, text))
+            handle.write(build_report(result, text, margins=margins))
     except OSError as err:
         return _fail(f"--out: cannot write {args.out}: {err.strerror}")
     print(f"lhsim: wrote {args.out}", file=sys.stderr)
@@ -327,18 +345,32 @@ def _cmd_plot(args):
             return _fail(f"--out {args.out}: the folder {folder} {what}; make it first, or choose another --out")
         if pathlib.Path(args.out).is_dir():
             return _fail(f"--out {args.out} is a folder; give a file name ending in .png or .svg")
-    from cycle.plots import sweep_chart
+    if args.uncertainty:
+        if args.x or args.y or args.by:
+            return _fail("--uncertainty draws its own chart: give it without --x, --y and --by")
+        from cycle.uncertainty import stats_path
 
-    try:
-        fig, _ = sweep_chart(frame, args.x, args.y, args.by)
-    except ScenarioError as err:
-        return _fail(str(err))
-    if args.out:
-        outs = [args.out]
+        side = stats_path(path)
+        if not side.exists():
+            return _fail(f"{path} has no statistics beside it ({side.name}): make it with lhsim uncertainty")
+        from cycle.plots import uncertainty_chart
+
+        try:
+            fig, _ = uncertainty_chart(frame, json.loads(side.read_text(encoding="utf-8")))
+        except (ValueError, KeyError) as err:
+            return _fail(f"{side} could not be read as lhsim uncertainty statistics: {err}")
+        name = f"{path.with_suffix('')}-uncertainty"
     else:
-        stem = path.with_suffix("")
-        name = f"{stem}-{args.y}-vs-{args.x}" + (f"-by-{args.by}" if args.by else "")
-        outs = [f"{name}.png", f"{name}.svg"]
+        if not (args.x and args.y):
+            return _fail("plot needs --x and --y (or --uncertainty for the results of lhsim uncertainty)")
+        from cycle.plots import sweep_chart
+
+        try:
+            fig, _ = sweep_chart(frame, args.x, args.y, args.by)
+        except ScenarioError as err:
+            return _fail(str(err))
+        name = f"{path.with_suffix('')}-{args.y}-vs-{args.x}" + (f"-by-{args.by}" if args.by else "")
+    outs = [args.out] if args.out else [f"{name}.png", f"{name}.svg"]
     import matplotlib.pyplot as plt
 
     try:

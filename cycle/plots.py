@@ -340,6 +340,62 @@ def loss_chart(result):
     return fig, data
 
 
+# -- margins ------------------------------------------------------------------------------
+
+def uncertainty_data(frame, stats):
+    """What :func:`uncertainty_chart` draws: the main output of every solved sample, its unit and
+    words, the marks (target, P5/P50/P95 or the flows for 90 and 95 % confidence) and the
+    sensitivity bars (input, Spearman's rho against the main output), largest first."""
+    from cycle.uncertainty import OUTPUTS
+
+    words = {k: (w, u) for k, w, u in OUTPUTS}
+    main = stats["main_output"]
+    ok = frame[frame["status"] == "ok"]
+    values = ok[main].dropna().to_numpy(dtype=float)
+    s = stats["outputs"][main]
+    marks = [("P5", s["p5"]), ("P50", s["p50"]), ("P95", s["p95"])]
+    if stats.get("target_L_per_h") is not None and main == "liquid_rate_L_per_h":
+        marks.append((f"target {stats['target_L_per_h']:g} L/h "
+                      f"(met by {100.0 * stats['probability_of_target']:.1f} % of samples)", stats["target_L_per_h"]))
+    flows = (stats.get("flow_for_confidence") or {}).get(main) or {}
+    marks += [(f"{c} % confidence", v) for c, v in flows.items() if v is not None]
+    bars = sorted(((key, row.get(main, 0.0)) for key, row in stats["sensitivity"].items()), key=lambda kv: -abs(kv[1]))
+    return {"output": main, "words": words[main][0], "unit": words[main][1], "values": values, "marks": marks,
+            "bars": bars, "method": stats["sensitivity_method"], "samples": stats["samples"]}
+
+
+def uncertainty_chart(frame, stats):
+    """Two panels: the distribution of the main output over the samples with its marks, and the
+    inputs' rank correlations with it."""
+    plt = _pyplot()
+    data = uncertainty_data(frame, stats)
+    fig, (ax, bx) = plt.subplots(1, 2, figsize=(11.0, 4.6), gridspec_kw={"width_ratios": [1.4, 1.0]})
+    unit = "" if data["unit"] == "-" else f" [{data['unit']}]"
+    ax.hist(data["values"], bins=max(8, min(40, int(np.sqrt(len(data["values"]))) * 2)), color=COLD, alpha=0.75,
+            edgecolor="white")
+    for label, x in data["marks"]:
+        percentile = label in ("P5", "P50", "P95")
+        ax.axvline(x, color=INK if percentile else HOT, ls=":" if percentile else "-", lw=1.0 if percentile else 1.6,
+                   label=("P5, P50, P95" if label == "P5" else None) if percentile else label)
+    ax.set_xlabel(f"{data['words']}{unit}")
+    ax.set_ylabel("samples")
+    ax.set_title(f"{data['words'].capitalize()} over {len(data['values'])} solved samples")
+    ax.legend(fontsize=8, loc="upper left")
+    names = [k for k, _ in data["bars"]][::-1]
+    rho = [v for _, v in data["bars"]][::-1]
+    bx.barh(np.arange(len(names)), rho, color=[COLD if v >= 0 else HOT for v in rho], height=0.6)
+    bx.set_yticks(np.arange(len(names)), names, fontsize=8)
+    bx.axvline(0.0, color=INK, lw=0.8)
+    noise = 2.0 / np.sqrt(max(len(data["values"]), 1))
+    bx.axvspan(-noise, noise, color=DOME, alpha=0.15, lw=0, label=f"|rho| < {noise:.2f}: not told from no effect")
+    bx.set_xlim(-1.05, 1.05)
+    bx.set_xlabel(f"Spearman's rho with {data['words']}")
+    bx.set_title("What drives the spread")
+    bx.legend(fontsize=7, loc="lower right")
+    fig.tight_layout()
+    return fig, data
+
+
 # -- sweep charts -------------------------------------------------------------------------
 
 _SUFFIX_UNITS = [("_kJ_per_kg_compressed", "kJ/kg of compressor flow"), ("_kJ_per_kg_liquid", "kJ/kg of liquid"),

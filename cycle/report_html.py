@@ -54,7 +54,43 @@ def _figure(png, caption):
             f"<figcaption>{html.escape(caption)}</figcaption></figure>")
 
 
-def build_report(result, scenario_text, when=None):
+def _margins_section(frame, stats):
+    """The uncertainty section's results: statistics, the production margin, the sensitivity
+    table and the chart."""
+    from cycle.plots import figure_png, uncertainty_chart
+    from cycle.report import number
+    from cycle.uncertainty import OUTPUTS, SENSITIVITY_COLUMNS
+
+    words = {k: (w, u) for k, w, u in OUTPUTS}
+    parts = ["<h2>Margins</h2>",
+             f"<p>{stats['samples']} samples of the uncertain inputs (a seeded Latin hypercube), each a design point: "
+             f"{stats['solved']} solved, {stats['no_liquid']} made no liquid, {stats['failed']} failed.</p>"]
+    parts.append(_table(["input", "distribution"], [(html.escape(k), html.escape(v)) for k, v in stats["inputs"].items()],
+                        text_columns=(0, 1)))
+    rows = [(html.escape(words[k][0]), number(s["mean"], "{:.5g}"), number(s["sd"], "{:.3g}"), number(s["p5"], "{:.5g}"),
+             number(s["p50"], "{:.5g}"), number(s["p95"], "{:.5g}"), html.escape(words[k][1]))
+            for k, s in stats["outputs"].items()]
+    parts.append(_table(["output", "mean", "sd", "P5", "P50", "P95", "unit"], rows, text_columns=(0, 6)))
+    if stats.get("probability_of_target") is not None:
+        parts.append(f"<p>Probability of making at least {stats['target_L_per_h']:g} L/h at this compressor flow: "
+                     f"<b>{100.0 * stats['probability_of_target']:.1f} %</b>.</p>")
+    for column, flows in (stats.get("flow_for_confidence") or {}).items():
+        unit = "kg/h" if column.endswith("kg_per_h") else "m3/h"
+        text = ", ".join(f"{c} %: {v:.4g} {unit}" if v is not None else f"{c} %: not reachable"
+                         for c, v in flows.items())
+        parts.append(f"<p>{html.escape(column.replace('_', ' '))} that meets the production with confidence {text}.</p>")
+    keys = [k for k in stats["outputs"] if k in SENSITIVITY_COLUMNS]
+    parts.append(f"<p class='meta'>Sensitivity: {html.escape(stats['sensitivity_method'])}.</p>")
+    parts.append(_table(["input"] + [SENSITIVITY_COLUMNS[k] for k in keys],
+                        [[html.escape(name)] + [number(row.get(k, 0.0), "{:+.3f}") for k in keys]
+                         for name, row in stats["sensitivity"].items()], text_columns=(0,)))
+    parts += [f"<div class='warning'>{html.escape(n)}</div>" for n in stats["notes"]]
+    fig, _ = uncertainty_chart(frame, stats)
+    parts.append(_figure(figure_png(fig), "The main output over the samples, and what drives its spread."))
+    return parts
+
+
+def build_report(result, scenario_text, when=None, margins=None):
     """The report as one HTML string.
 
     Parameters
@@ -64,6 +100,9 @@ def build_report(result, scenario_text, when=None):
         The scenario file as given (shown verbatim).
     when : datetime.date, optional
         Report date; default today.
+    margins : (pandas.DataFrame, dict), optional
+        The samples and statistics of the scenario's uncertainty section
+        (:func:`cycle.uncertainty.run_uncertainty`): a section "Margins".
     """
     from cycle import __version__
     from cycle.plots import exchanger_profiles, figure_png, loss_chart, ts_diagram
@@ -105,6 +144,9 @@ def build_report(result, scenario_text, when=None):
                           (loss_chart, "From ideal work to actual work: the exergy destroyed in each unit.")):
         fig, _ = draw(result)
         parts.append(_figure(figure_png(fig), caption))
+
+    if margins is not None:
+        parts += _margins_section(*margins)
 
     parts.append("<h2>Streams</h2>")
     states = result.state_rows()

@@ -189,10 +189,13 @@ def parse_input(key, spec):
                 raise ScenarioError(f"{where}: the mode must lie from low to high, got {shown(params)}")
             dist = stats.triang(c=(mode - low) / (high - low), loc=low, scale=high - low)
     lo, hi = _legal(key, kind, dimension)
-    found = Input(key, dimension, dist, lo, hi, f"{name} {params}")
+    given = [str(v).strip() for v in params]
+    text = {"normal": f"normal, mean {given[0]}, sd {given[-1]}", "lognormal": f"lognormal, mean {given[0]}, sd {given[-1]}",
+            "uniform": f"uniform from {given[0]} to {given[-1]}",
+            "triangular": f"triangular from {given[0]} to {given[-1]}, mode {given[1]}"}[name]
+    found = Input(key, dimension, dist, lo, hi, text)
     if found.u_high - found.u_low <= 0.0:
-        raise ScenarioError(f"{full}: the distribution {name} {params} lies wholly outside the values the key "
-                            f"can take")
+        raise ScenarioError(f"{full}: the distribution {text} lies wholly outside the values the key can take")
     return found
 
 
@@ -398,8 +401,9 @@ def _numbers(column):
 def format_stats(stats):
     """The summary as text for a terminal."""
     words = {k: (w, u) for k, w, u in OUTPUTS}
-    lines = [f"{stats['samples']} samples: {stats['solved']} solved, {stats['no_liquid']} made no liquid, "
-             f"{stats['failed']} failed or invalid", "",
+    lines = ["Uncertain inputs"] + [f"  {key}: {text}" for key, text in stats["inputs"].items()] + [""]
+    lines += [f"{stats['samples']} samples: {stats['solved']} solved, {stats['no_liquid']} made no liquid, "
+              f"{stats['failed']} failed or invalid", "",
              f"  {'output':<26s} {'mean':>11s} {'sd':>10s} {'P5':>11s} {'P50':>11s} {'P95':>11s}  unit"]
     for key, s in stats["outputs"].items():
         w, u = words[key]

@@ -125,7 +125,7 @@ def test_mass_outside_a_keys_range_is_cut_and_said(tmp_path):
     data = bench({"samples": 16, "recuperator.effectiveness": {"normal": [0.99, "2 %"]}})
     mapping, inputs, drawn, _, notes = as_sweep(data)
     assert max(row[0] for row in drawn) <= 1.0
-    assert len(notes) == 1 and notes[0].startswith("uncertainty.recuperator.effectiveness: normal")
+    assert len(notes) == 1 and notes[0].startswith("uncertainty.recuperator.effectiveness: normal, mean 0.99, sd 2 %")
     assert "of its mass outside the values the key can take; sampled truncated to them" in notes[0]
     z = (1.0 - 0.99) / (0.02 * 0.99)  # the mass above an effectiveness of 1: P(Z > z)
     assert inputs[0].cut == pytest.approx(0.5 * math.erfc(z / math.sqrt(2.0)), rel=1e-9)
@@ -141,7 +141,7 @@ def test_mass_outside_a_keys_range_is_cut_and_said(tmp_path):
     ({"heat_lek": {"uniform": ["4 W", "9 W"]}}, "uncertainty.heat_lek: not a scenario key; did you mean heat_leak?"),
     ({"samples": 1, "heat_leak": {"uniform": ["4 W", "9 W"]}}, "uncertainty.samples must be a whole number from 2"),
     ({"samples": 10}, "uncertainty names no uncertain key"),
-    ({"heat_leak": {"uniform": ["-9 W", "-4 W"]}}, "uncertainty.heat_leak: the distribution uniform"),
+    ({"heat_leak": {"uniform": ["-9 W", "-4 W"]}}, "uncertainty.heat_leak: the distribution uniform from -9 W to -4 W lies wholly"),
 ])
 def test_bad_sections_are_refused_in_one_line(section, message):
     with pytest.raises(ScenarioError) as info:
@@ -163,3 +163,32 @@ def test_the_cli_json_and_a_file_without_the_section(tmp_path, capsys):
     assert "the scenario has no uncertainty section" in capsys.readouterr().err
     # Other commands set the section aside.
     assert cli.main(["run", str(path)]) == 0
+
+
+def test_the_pictures_and_the_report_section(tmp_path, capsys):
+    from cycle.plots import uncertainty_data
+
+    data = bench({"samples": 8, "heat_leak": {"uniform": ["4 W", "9 W"]}}, production={"compressor_flow": "140 kg/h"})
+    data["uncertainty"]["target"] = "10 L/h"
+    path = tmp_path / "m.yaml"
+    path.write_text(yaml.safe_dump(data))
+    results = tmp_path / "m.csv"
+    assert cli.main(["uncertainty", str(path), "--out", str(results), "--workers", "1"]) == 0
+    assert cli.main(["plot", str(results), "--uncertainty"]) == 0
+    assert (tmp_path / "m-uncertainty.png").stat().st_size > 10_000
+    frame, stats = api.uncertainty(data, out=results)
+    drawn = uncertainty_data(frame, stats)
+    assert drawn["output"] == "liquid_rate_L_per_h" and len(drawn["values"]) == 8
+    assert any(label.startswith("target 10 L/h") and abs(x - 10.0) < 1e-9 for label, x in drawn["marks"])
+    assert [k for k, _ in drawn["bars"]] == ["heat_leak"] and drawn["bars"][0][1] < -0.9
+    # Without its statistics file a results file cannot be drawn this way: said in one line.
+    (tmp_path / "m.csv.uncertainty.json").unlink()
+    assert cli.main(["plot", str(results), "--uncertainty"]) == 2
+    assert "make it with lhsim uncertainty" in capsys.readouterr().err
+    report = tmp_path / "r.html"
+    assert cli.main(["report", str(path), "--out", str(report)]) == 0
+    text = report.read_text()
+    assert "<h2>Margins</h2>" in text and "Probability of making at least 10 L/h" in text
+    assert "Spearman" in text and "uniform from 4 W to 9 W" in text
+    assert "<h2>Margins</h2>" not in (lambda out: (cli.main(["report", "scenarios/nitrogen-bench.yaml", "--out",
+                                                              str(out)]), out.read_text())[1])(tmp_path / "n.html")
