@@ -377,21 +377,26 @@ def uncertainty_chart(frame, stats):
         percentile = label in ("P5", "P50", "P95")
         ax.axvline(x, color=INK if percentile else HOT, ls=":" if percentile else "-", lw=1.0 if percentile else 1.6,
                    label=("P5, P50, P95" if label == "P5" else None) if percentile else label)
+    flows = (stats.get("flow_for_confidence") or {}).get(data["output"]) or {}
+    for c, v in flows.items():
+        if v is None:
+            ax.plot([], [], " ", label=f"{c} % confidence: not reachable (too many samples make no liquid)")
     ax.set_xlabel(f"{data['words']}{unit}")
     ax.set_ylabel("samples")
+    ax.set_axisbelow(True)
     ax.set_title(f"{data['words'].capitalize()} over {len(data['values'])} solved samples")
-    ax.legend(fontsize=8, loc="upper left")
+    ax.legend(fontsize=8, loc="best", frameon=True, framealpha=0.9, edgecolor="none")
     names = [k for k, _ in data["bars"]][::-1]
     rho = [v for _, v in data["bars"]][::-1]
     bx.barh(np.arange(len(names)), rho, color=[COLD if v >= 0 else HOT for v in rho], height=0.6)
     bx.set_yticks(np.arange(len(names)), names, fontsize=8)
     bx.axvline(0.0, color=INK, lw=0.8)
     noise = 2.0 / np.sqrt(max(len(data["values"]), 1))
-    bx.axvspan(-noise, noise, color=DOME, alpha=0.15, lw=0, label=f"|rho| < {noise:.2f}: not told from no effect")
+    bx.axvspan(-noise, noise, color=DOME, alpha=0.15, lw=0)
     bx.set_xlim(-1.05, 1.05)
-    bx.set_xlabel(f"Spearman's rho with {data['words']}")
+    bx.set_xlabel(f"Spearman's rho with {data['words']}\n(shaded: |rho| < {noise:.2f}, not told from no effect)")
     bx.set_title("What drives the spread")
-    bx.legend(fontsize=7, loc="lower right")
+    bx.set_axisbelow(True)
     fig.tight_layout()
     return fig, data
 

@@ -247,6 +247,13 @@ def as_sweep(data):
         sweep[inp.key] = [inp.as_text(row[k]) for row in drawn]
     notes = [f"uncertainty.{inp.key}: {inp.text} puts {100.0 * inp.cut:.3g} % of its mass outside the values the "
              f"key can take; sampled truncated to them" for inp in inputs if inp.cut > TRUNCATION_NOTE]
+    production = _production(base)
+    if target is not None and production == "liquid_rate":
+        notes.append("uncertainty.target is not used: production.liquid_rate sets the production of every sample, "
+                     "and the compressor flow that meets it with 90 and 95 % confidence is reported instead")
+    elif target is not None and production is None:
+        notes.append("uncertainty.target is not used: the scenario has no production section, so the samples give "
+                     "yields, not liquid rates (give production.compressor_flow to rate a plant)")
     return dict(base, sweep=sweep), inputs, drawn, target, notes
 
 
@@ -269,7 +276,7 @@ def run_uncertainty(data, out, workers=None, dask=None, overwrite=False, progres
     run_sweep(mapping, out, workers=workers, dask=dask, overwrite=overwrite, progress=progress,
               dask_timeout=dask_timeout)
     frame = read_results(out)
-    stats = analyse(frame, inputs, target, _fixed_flow(mapping), notes)
+    stats = analyse(frame, inputs, target, _production(mapping), notes)
     # Beside the results: what lhsim plot --uncertainty draws from.
     side = stats_path(out)
     side.write_text(json.dumps(_finite(stats), indent=1), encoding="utf-8")
@@ -305,10 +312,15 @@ def read_results(path):
     return pd.read_csv(path, keep_default_na=False, na_values=[""], dtype={"message": str, "status": str})
 
 
-def _fixed_flow(mapping):
-    """True where the scenario fixes the compressor (production.compressor_flow)."""
+def _production(mapping):
+    """'compressor_flow' (a rated plant), 'liquid_rate' (a plant sized for it) or None."""
     production = mapping.get("production") or {}
-    return isinstance(production, dict) and production.get("compressor_flow") is not None
+    if not isinstance(production, dict):
+        return None
+    for key in ("compressor_flow", "liquid_rate"):
+        if production.get(key) is not None:
+            return key
+    return None
 
 
 def _stats(values):
@@ -322,7 +334,7 @@ def _stats(values):
             "p5": float(p5), "p50": float(p50), "p95": float(p95), "n": int(v.size)}
 
 
-def analyse(frame, inputs, target, fixed_flow, notes=()):
+def analyse(frame, inputs, target, production, notes=()):
     """Statistics of the outputs, the production margin and the sensitivity indices.
 
     Returns
@@ -345,8 +357,11 @@ def analyse(frame, inputs, target, fixed_flow, notes=()):
     out = {"samples": n, "solved": int(len(ok)), "no_liquid": int((frame["status"] == "no-liquid").sum()),
            "failed": int(frame["status"].isin(["invalid", "failed"]).sum()), "outputs": {}, "notes": list(notes),
            "sensitivity_method": "Spearman's rank correlation coefficient rho (scipy.stats.spearmanr)"}
-    keys = [k for k, _, _ in OUTPUTS if k in frame.columns and ok[k].notna().any()
-            and not (fixed_flow and k == "compressor_flow_kg_per_h")]
+    # An output the scenario fixes (the compressor flow of a rated plant, the liquid rate of one
+    # sized for it) has no spread to summarise.
+    fixed_flow = production == "compressor_flow"
+    fixed = "compressor_flow_kg_per_h" if fixed_flow else "liquid_rate_L_per_h"
+    keys = [k for k, _, _ in OUTPUTS if k in frame.columns and ok[k].notna().any() and k != fixed]
     for key in keys:
         out["outputs"][key] = _stats(ok[key].dropna())
     main = "liquid_rate_L_per_h" if "liquid_rate_L_per_h" in keys else "liquid_yield"
@@ -357,7 +372,7 @@ def analyse(frame, inputs, target, fixed_flow, notes=()):
         made = frame["liquid_rate_L_per_h"].where(frame["status"] == "ok")
         out["target_L_per_h"] = target * 3.6e6
         out["probability_of_target"] = float((made >= target * 3.6e6).sum() / n) if n else None
-    if not fixed_flow and "compressor_flow_kg_per_h" in frame.columns:
+    if production == "liquid_rate" and "compressor_flow_kg_per_h" in frame.columns:
         flows = {}
         for column in ("compressor_flow_kg_per_h", "compressor_suction_volume_flow_m3_per_h"):
             if column not in frame.columns:
@@ -437,5 +452,7 @@ def format_stats(stats):
     for key, row in ranked:
         lines.append(f"  {key:<{width}s} " + " ".join(f"{row.get(k, 0.0):>+12.3f}" for k in shown_keys))
     if stats["notes"]:
-        lines += [""] + [f"  note: {n}" for n in stats["notes"]]
+        lines.append("")
+        for note in stats["notes"]:
+            lines += textwrap.wrap(f"note: {note}", 100, initial_indent="  ", subsequent_indent="    ")
     return "\n".join(lines)

@@ -112,13 +112,24 @@ def test_the_demo_states_its_margin(tmp_path):
 
 
 def test_a_liquid_rate_target_gives_the_flow_for_confidence(tmp_path):
-    data = bench({"samples": 20, "seed": 5, "heat_leak": {"uniform": ["4 W", "12 W"]},
+    data = bench({"samples": 20, "seed": 5, "target": "10 L/h", "heat_leak": {"uniform": ["4 W", "12 W"]},
                   "recuperator.effectiveness": {"triangular": [0.96, 0.975, 0.98]}})
     frame, stats = api.uncertainty(data, out=tmp_path / "g.csv")
     flows = stats["flow_for_confidence"]["compressor_flow_kg_per_h"]
     assert flows["90"] == pytest.approx(np.quantile(frame["compressor_flow_kg_per_h"], 0.9), rel=1e-12)
     assert flows["90"] <= flows["95"]
     assert stats["main_output"] == "compressor_flow_kg_per_h"
+    # The liquid rate is the scenario's own production: no spread, no row, and the target not used.
+    assert "liquid_rate_L_per_h" not in stats["outputs"] and "probability_of_target" not in stats
+    assert any(n.startswith("uncertainty.target is not used: production.liquid_rate") for n in stats["notes"])
+
+
+def test_without_production_the_yield_is_the_main_output():
+    data = bench({"target": "10 L/h", "recuperator.effectiveness": {"uniform": [0.96, 0.98]}})
+    del data["production"], data["heat_leak"]
+    *_, notes = as_sweep(data)
+    assert notes == ["uncertainty.target is not used: the scenario has no production section, so the samples give "
+                     "yields, not liquid rates (give production.compressor_flow to rate a plant)"]
 
 
 def test_mass_outside_a_keys_range_is_cut_and_said(tmp_path):
