@@ -231,17 +231,21 @@ def _plots_folder_problem(folder):
 
 def _cmd_run(args):
     from cycle.errors import NoLiquefactionError, ScenarioError
-    from cycle.scenario import load_scenario_and_sweep
+    from cycle.scenario import parse_scenario, read_mapping
 
     if args.plots:
         problem = _plots_folder_problem(args.plots)
         if problem:
             return _fail(f"--plots must name a directory lhsim can write into, got {args.plots}: {problem}")
     try:
-        scenario, sweep = load_scenario_and_sweep(args.scenario)  # the file is read once
-        if sweep is not None:
-            print("lhsim: note: run solves the scenario without its sweep section; use lhsim sweep "
-                  "for the points", file=sys.stderr)
+        data = read_mapping(args.scenario)  # the file is read once
+        for section, command, what in (("sweep", "sweep", "the points"), ("uncertainty", "uncertainty", "the samples")):
+            if isinstance(data, dict) and data.get(section) is not None:
+                print(f"lhsim: note: run solves the scenario without its {section} section; use lhsim {command} "
+                      f"for {what}", file=sys.stderr)
+        if isinstance(data, dict):
+            data = {k: v for k, v in data.items() if k != "sweep"}
+        scenario = parse_scenario(data)
         from cycle.flowsheet import solve_scenario
 
         result = solve_scenario(scenario)

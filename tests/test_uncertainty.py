@@ -172,8 +172,11 @@ def test_the_cli_json_and_a_file_without_the_section(tmp_path, capsys):
     assert stats["sensitivity_method"].startswith("Spearman")
     assert cli.main(["uncertainty", "scenarios/nitrogen-bench.yaml", "--out", str(tmp_path / "i.csv")]) == 2
     assert "the scenario has no uncertainty section" in capsys.readouterr().err
-    # Other commands set the section aside.
+    # Other commands set the section aside, and run says so.
+    capsys.readouterr()
     assert cli.main(["run", str(path)]) == 0
+    assert ("run solves the scenario without its uncertainty section; use lhsim uncertainty for the samples"
+            in capsys.readouterr().err)
 
 
 def test_the_pictures_and_the_report_section(tmp_path, capsys):
