@@ -59,7 +59,7 @@ def _margins_section(frame, stats):
     table and the chart."""
     from cycle.plots import figure_png, uncertainty_chart
     from cycle.report import number
-    from cycle.uncertainty import OUTPUTS, SENSITIVITY_COLUMNS
+    from cycle.uncertainty import OUTPUTS, SENSITIVITY_COLUMNS, margin_sentences, ranked_sensitivity
 
     words = {k: (w, u) for k, w, u in OUTPUTS}
     parts = ["<h2>Margins</h2>",
@@ -71,19 +71,15 @@ def _margins_section(frame, stats):
              number(s["p50"], "{:.5g}"), number(s["p95"], "{:.5g}"), html.escape(words[k][1]))
             for k, s in stats["outputs"].items()]
     parts.append(_table(["output", "mean", "sd", "P5", "P50", "P95", "unit"], rows, text_columns=(0, 6)))
-    if stats.get("probability_of_target") is not None:
-        parts.append(f"<p>Probability of making at least {stats['target_L_per_h']:g} L/h at this compressor flow: "
-                     f"<b>{100.0 * stats['probability_of_target']:.1f} %</b>.</p>")
-    for column, flows in (stats.get("flow_for_confidence") or {}).items():
-        unit = "kg/h" if column.endswith("kg_per_h") else "m3/h"
-        text = ", ".join(f"{c} %: {v:.4g} {unit}" if v is not None else f"{c} %: not reachable"
-                         for c, v in flows.items())
-        parts.append(f"<p>{html.escape(column.replace('_', ' '))} that meets the production with confidence {text}.</p>")
+    parts += [f"<p>{html.escape(m[0].upper() + m[1:])}.</p>" for m in margin_sentences(stats)]
     keys = [k for k in stats["outputs"] if k in SENSITIVITY_COLUMNS]
-    parts.append(f"<p class='meta'>Sensitivity: {html.escape(stats['sensitivity_method'])}.</p>")
+    main, ranked, noise = ranked_sensitivity(stats)
+    parts.append(f"<p class='meta'>What drives the spread: {html.escape(stats['sensitivity_method'])} of each input "
+                 f"with each output, largest first for {html.escape(words[main][0])}; with {stats['solved']} samples "
+                 f"a |rho| below about {noise:.2f} cannot be told from no effect.</p>")
     parts.append(_table(["input"] + [SENSITIVITY_COLUMNS[k] for k in keys],
                         [[html.escape(name)] + [number(row.get(k, 0.0), "{:+.3f}") for k in keys]
-                         for name, row in stats["sensitivity"].items()], text_columns=(0,)))
+                         for name, row in ranked], text_columns=(0,)))
     parts += [f"<div class='warning'>{html.escape(n)}</div>" for n in stats["notes"]]
     fig, _ = uncertainty_chart(frame, stats)
     parts.append(_figure(figure_png(fig), "The main output over the samples, and what drives its spread."))

@@ -370,8 +370,9 @@ def analyse(frame, inputs, target, production, notes=()):
     out["main_output"] = main
     if fixed_flow and target is not None and "liquid_rate_L_per_h" in frame.columns:
         made = frame["liquid_rate_L_per_h"].where(frame["status"] == "ok")
-        out["target_L_per_h"] = target * 3.6e6
-        out["probability_of_target"] = float((made >= target * 3.6e6).sum() / n) if n else None
+        goal = float(f"{target * 3.6e6:.12g}")  # L/h, as written (no round-off from the unit conversion)
+        out["target_L_per_h"] = goal
+        out["probability_of_target"] = float((made >= goal).sum() / n) if n else None
     if production == "liquid_rate" and "compressor_flow_kg_per_h" in frame.columns:
         flows = {}
         for column in ("compressor_flow_kg_per_h", "compressor_suction_volume_flow_m3_per_h"):
@@ -413,8 +414,35 @@ def _numbers(column):
     return np.array([number(v) for v in column])
 
 
+def margin_sentences(stats):
+    """The production margin in sentences: the chance of the target at a fixed compressor flow,
+    or the compressor flow that meets the production with each confidence."""
+    found = []
+    if stats.get("probability_of_target") is not None:
+        found.append(f"probability of making at least {stats['target_L_per_h']:g} L/h at this compressor flow: "
+                     f"{100.0 * stats['probability_of_target']:.1f} %")
+    flows = stats.get("flow_for_confidence") or {}
+    for column, label, unit in (("compressor_flow_kg_per_h", "compressor flow", "kg/h"),
+                                ("compressor_suction_volume_flow_m3_per_h", "suction volume flow", "m3/h")):
+        if column in flows:
+            parts = [f"{c} %: " + (f"{v:.4g} {unit}" if v is not None else
+                                   "not reachable (too many samples make no liquid)") for c, v in flows[column].items()]
+            found.append(f"{label} that meets the production with confidence " + ", ".join(parts))
+    return found
+
+
+def ranked_sensitivity(stats):
+    """(main output, [(input, its row of rho)] largest |rho| with the main output first, the
+    |rho| below which an input cannot be told from no effect: 2/sqrt(solved samples))."""
+    main = stats["main_output"]
+    ranked = sorted(stats["sensitivity"].items(), key=lambda kv: -abs(kv[1].get(main, 0.0)))
+    return main, ranked, 2.0 / math.sqrt(max(stats["solved"], 1))
+
+
 def format_stats(stats):
     """The summary as text for a terminal."""
+    import textwrap
+
     words = {k: (w, u) for k, w, u in OUTPUTS}
     lines = ["Uncertain inputs"] + [f"  {key}: {text}" for key, text in stats["inputs"].items()] + [""]
     lines += [f"{stats['samples']} samples: {stats['solved']} solved, {stats['no_liquid']} made no liquid, "
@@ -424,28 +452,14 @@ def format_stats(stats):
         w, u = words[key]
         lines.append(f"  {w:<26s} {s['mean']:>11.5g} {s['sd']:>10.3g} {s['p5']:>11.5g} {s['p50']:>11.5g} "
                      f"{s['p95']:>11.5g}  {u}")
-    if "probability_of_target" in stats:
-        lines += ["", f"  probability of making at least {stats['target_L_per_h']:g} L/h at this compressor flow: "
-                      f"{100.0 * stats['probability_of_target']:.1f} %"]
-    flows = stats.get("flow_for_confidence") or {}
-    if flows:
-        lines.append("")
-        for column, label, unit in (("compressor_flow_kg_per_h", "compressor flow", "kg/h"),
-                                    ("compressor_suction_volume_flow_m3_per_h", "suction volume flow", "m3/h")):
-            if column in flows:
-                parts = [f"{c} %: " + (f"{v:.4g} {unit}" if v is not None else "not reachable (too many samples "
-                                                                                  "make no liquid)")
-                         for c, v in flows[column].items()]
-                lines.append(f"  {label} that meets the production with confidence " + ", ".join(parts))
-    import textwrap
-
-    main = stats["main_output"]
-    noise = 2.0 / math.sqrt(max(stats["solved"], 1))
+    margin = margin_sentences(stats)
+    if margin:
+        lines += [""] + [f"  {m}" for m in margin]
+    main, ranked, noise = ranked_sensitivity(stats)
     lines += [""] + textwrap.wrap(
         f"What drives the spread: {stats['sensitivity_method']} of each input with each output, largest first "
         f"for {words[main][0]} (with {stats['solved']} samples, |rho| below about {noise:.2f} cannot be told from "
         f"no effect):", 100)
-    ranked = sorted(stats["sensitivity"].items(), key=lambda kv: -abs(kv[1].get(main, 0.0)))
     shown_keys = [k for k in stats["outputs"] if k in SENSITIVITY_COLUMNS]
     width = max([len(k) for k, _ in ranked] + [5])
     lines.append(f"  {'input':<{width}s} " + " ".join(f"{SENSITIVITY_COLUMNS[k]:>12s}" for k in shown_keys))
