@@ -58,11 +58,13 @@ def _parser():
     report.add_argument("--out", required=True, metavar="FILE.html")
 
     plot = sub.add_parser(
-        "plot", help="chart sweep results: one quantity against another, a line per category",
+        "plot", help="chart sweep results (one quantity against another, a line per category) or margins",
         description="Draw a column of a sweep results file against another, one line per value of --by; "
-                    "points that made no liquid or failed are marked along the bottom axis.",
+                    "points that made no liquid or failed are marked along the bottom axis. With --uncertainty, "
+                    "draw the results of lhsim uncertainty: the main output's histogram with the target and "
+                    "the inputs' rank correlations with it.",
         epilog=SAFETY_POINTER, formatter_class=_Formatter)
-    plot.add_argument("results", metavar="RESULTS.csv", help="results of lhsim sweep (.csv or .parquet)")
+    plot.add_argument("results", metavar="RESULTS.csv", help="results of lhsim sweep or lhsim uncertainty (.csv or .parquet)")
     plot.add_argument("--x", metavar="KEY")
     plot.add_argument("--y", metavar="KEY")
     plot.add_argument("--uncertainty", action="store_true",
@@ -83,16 +85,7 @@ def _parser():
                           "2 invalid scenario or sweep; 130 interrupted (results so far are kept).",
         formatter_class=_Formatter)
     sweep.add_argument("scenario", metavar="SCENARIO.yaml", help="scenario file with a sweep: section")
-    sweep.add_argument("--out", required=True, metavar="PATH", help="results file, .csv or .parquet")
-    sweep.add_argument("--workers", type=int, default=None, metavar="N",
-                       help="local worker processes (default and most: the CPU count, and no more than the "
-                            "points left; 1 runs in this process)")
-    sweep.add_argument("--dask", metavar="ADDRESS",
-                       help="run on a Dask distributed scheduler at ADDRESS, or 'local' to start one here")
-    sweep.add_argument("--dask-timeout", type=float, default=10.0, metavar="SECONDS",
-                       help="how long to try to reach the scheduler at --dask ADDRESS (default 10)")
-    sweep.add_argument("--overwrite", action="store_true",
-                       help="replace an output file made by a different scenario")
+    _runner_options(sweep, "PATH", "points")
     sweep.add_argument("--max-points", type=int, default=None, metavar="N",
                        help="refuse a sweep of more than N points before computing any (default 1000000)")
 
@@ -109,13 +102,7 @@ def _parser():
                           "2 invalid scenario or uncertainty section; 130 interrupted (results so far are kept).",
         formatter_class=_Formatter)
     margins.add_argument("scenario", metavar="SCENARIO.yaml", help="scenario file with an uncertainty: section")
-    margins.add_argument("--out", required=True, metavar="RESULTS", help="results file, .csv or .parquet")
-    margins.add_argument("--workers", type=int, default=None, metavar="N",
-                         help="local worker processes (default and most: the CPU count; 1 runs in this process)")
-    margins.add_argument("--dask", metavar="ADDRESS",
-                         help="run on a Dask distributed scheduler at ADDRESS, or 'local' to start one here")
-    margins.add_argument("--overwrite", action="store_true",
-                         help="replace an output file made by a different scenario")
+    _runner_options(margins, "RESULTS", "samples")
     margins.add_argument("--json", action="store_true", help="print the statistics as one JSON object and nothing else")
 
     compare = sub.add_parser(
@@ -192,14 +179,29 @@ def main(argv=None):
         return 130
 
 
-def _json_safe(value):
-    if isinstance(value, float) and not math.isfinite(value):
-        return None
-    if isinstance(value, dict):
-        return {k: _json_safe(v) for k, v in value.items()}
-    if isinstance(value, (list, tuple)):
-        return [_json_safe(v) for v in value]
-    return value
+def _runner_options(parser, out_name, points):
+    """The sweep runner's options: --out, --workers, --dask, --overwrite."""
+    parser.add_argument("--out", required=True, metavar=out_name, help="results file, .csv or .parquet")
+    parser.add_argument("--workers", type=int, default=None, metavar="N",
+                        help=f"local worker processes (default and most: the CPU count, and no more than the "
+                             f"{points} left; 1 runs in this process)")
+    parser.add_argument("--dask", metavar="ADDRESS",
+                        help="run on a Dask distributed scheduler at ADDRESS, or 'local' to start one here")
+    parser.add_argument("--overwrite", action="store_true",
+                        help="replace an output file made by a different scenario")
+    parser.add_argument("--dask-timeout", type=float, default=10.0, metavar="SECONDS",
+                        help="how long to try to reach the scheduler at --dask ADDRESS (default 10)")
+
+
+def _runner_problem(args):
+    """What is wrong with the runner's options (one line), or None."""
+    if args.workers is not None and args.workers < 1:
+        return f"--workers must be 1 or more, got {args.workers}"
+    if args.dask is not None and not args.dask.strip():
+        return "--dask must be local or a scheduler address such as tcp://127.0.0.1:8786, got ''"
+    if not (math.isfinite(args.dask_timeout) and args.dask_timeout > 0):
+        return f"--dask-timeout must be a number of seconds above 0, got {args.dask_timeout:g}"
+    return None
 
 
 def _plots_folder_problem(folder):
@@ -254,7 +256,9 @@ def _cmd_run(args):
     except NoLiquefactionError as err:
         return _fail(str(err), EXIT_NO_LIQUID)
     if args.json:
-        print(json.dumps(_json_safe(result.to_dict()), indent=2))
+        from cycle.results import json_safe
+
+        print(json.dumps(json_safe(result.to_dict()), indent=2))
         if not result.solve.converged:
             print("lhsim: note: the solve did not meet its target; see solve and warnings in the JSON",
                   file=sys.stderr)
@@ -391,7 +395,9 @@ def _cmd_plot(args):
 def _emit(args, data, formatter_name):
     """Print ``data`` as JSON (``--json``) or as text by ``cycle.report.<formatter_name>``."""
     if args.json:
-        print(json.dumps(_json_safe(data), indent=2))
+        from cycle.results import json_safe
+
+        print(json.dumps(json_safe(data), indent=2))
     else:
         from cycle import report
 
@@ -409,12 +415,9 @@ def _read(path):
 def _cmd_sweep(args):
     from cycle.errors import ScenarioError
 
-    if args.workers is not None and args.workers < 1:
-        return _fail(f"--workers must be 1 or more, got {args.workers}")
-    if args.dask is not None and not args.dask.strip():
-        return _fail("--dask must be local or a scheduler address such as tcp://127.0.0.1:8786, got ''")
-    if not (math.isfinite(args.dask_timeout) and args.dask_timeout > 0):
-        return _fail(f"--dask-timeout must be a number of seconds above 0, got {args.dask_timeout:g}")
+    problem = _runner_problem(args)
+    if problem:
+        return _fail(problem)
     if args.max_points is not None and args.max_points < 1:
         return _fail(f"--max-points must be 1 or more, got {args.max_points}")
     try:
@@ -440,8 +443,9 @@ def _cmd_sweep(args):
 def _cmd_uncertainty(args):
     from cycle.errors import ScenarioError
 
-    if args.workers is not None and args.workers < 1:
-        return _fail(f"--workers must be 1 or more, got {args.workers}")
+    problem = _runner_problem(args)
+    if problem:
+        return _fail(problem)
     if args.workers is not None and args.dask is not None:
         return _fail("give --workers or --dask, not both")
     try:
@@ -450,7 +454,7 @@ def _cmd_uncertainty(args):
 
         try:
             _, stats = run_uncertainty(data, args.out, workers=args.workers, dask=args.dask, overwrite=args.overwrite,
-                                       progress=None if not args.json else False)
+                                       progress=None if not args.json else False, dask_timeout=args.dask_timeout)
         except KeyboardInterrupt:
             print(f"lhsim: interrupted; the samples finished so far are in {args.out}: run the same command "
                   f"again to compute the rest", file=sys.stderr)
@@ -460,7 +464,9 @@ def _cmd_uncertainty(args):
     except OSError as err:
         return _fail(f"--out {args.out}: {err.strerror or err}")
     if args.json:
-        print(json.dumps(_json_safe(stats), indent=2))
+        from cycle.results import json_safe
+
+        print(json.dumps(json_safe(stats), indent=2))
     else:
         print(format_stats(stats))
         print(SHORT_CAUTION)

@@ -566,3 +566,15 @@ def _positive_or_none(x):
 
 def _finite_or_none(x):
     return float(x) if np.isfinite(x) else None
+
+
+def json_safe(value):
+    """``value`` with every non-finite float (inf, nan), however deeply nested in dicts, lists
+    and tuples, replaced by None: what JSON can hold."""
+    if isinstance(value, float) and not np.isfinite(value):
+        return None
+    if isinstance(value, dict):
+        return {k: json_safe(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [json_safe(v) for v in value]
+    return value

@@ -335,20 +335,21 @@ def expand(data, max_points=MAX_POINTS):
     return keys, points
 
 
-def validate(keys, points):
-    """Parse every point; refuse the sweep on the first invalid one, naming key and value."""
+def validate(keys, points, point_name="sweep point"):
+    """Parse every point; refuse the sweep on the first invalid one, naming key and value
+    (``point_name`` is what a point is called in the message)."""
     scenarios = []
     for k, (values, mapping) in enumerate(points):
         try:
             scenarios.append(parse_scenario(mapping))
         except ScenarioError as err:
             at = ", ".join(f"{key} = {shown(value)}" for key, value in values.items())
-            raise ScenarioError(f"sweep point {k} ({at}) is invalid: {err}") from None
+            raise ScenarioError(f"{point_name} {k} ({at}) is invalid: {err}") from None
         for key, value in values.items():
             try:
                 to_si(key, value)
             except UnitError as err:
-                raise ScenarioError(f"sweep point {k}: {key} = {shown(value)}: {err}") from None
+                raise ScenarioError(f"{point_name} {k}: {key} = {shown(value)}: {err}") from None
     column_dimensions(keys, points)
     return scenarios
 
@@ -932,7 +933,7 @@ DASK_TIMEOUT = 10.0  # seconds to reach a Dask scheduler before giving up
 
 
 def run_sweep(data, out, workers=None, dask=None, overwrite=False, progress=None, batch_size=None,
-              dask_timeout=DASK_TIMEOUT, max_points=None):
+              dask_timeout=DASK_TIMEOUT, max_points=None, point_name="sweep point"):
     """Run a sweep and write its results file.
 
     Parameters
@@ -958,6 +959,9 @@ def run_sweep(data, out, workers=None, dask=None, overwrite=False, progress=None
     max_points : int, optional
         Most points the sweep may have (default :data:`MAX_POINTS`); more refuses it at once
         with the count, before any point is made.
+    point_name : str
+        What an invalid point is called in the error (``"uncertainty sample"`` for the samples
+        of :mod:`cycle.uncertainty`).
 
     Returns
     -------
@@ -972,7 +976,7 @@ def run_sweep(data, out, workers=None, dask=None, overwrite=False, progress=None
     if not (isinstance(dask_timeout, (int, float)) and math.isfinite(dask_timeout) and dask_timeout > 0):
         raise ScenarioError(f"--dask-timeout must be a number of seconds above 0, got {dask_timeout!r}")
     keys, points = expand(data, MAX_POINTS if max_points is None else max_points)
-    scenarios = validate(keys, points)
+    scenarios = validate(keys, points, point_name)
     dimensions = column_dimensions(keys, points)
     columns = columns_for(keys, scenarios, dimensions)
     client = None

@@ -27,6 +27,7 @@ the share of the output's (rank) variance the input explains.
 import math
 
 from cycle.errors import ScenarioError
+from cycle.results import json_safe
 from cycle.scenario import key_kind
 from cycle.sweep import COLUMN_UNITS, column_value, find_column, split_sweep
 from cycle.units import UnitError, parse_quantity, shown
@@ -274,12 +275,12 @@ def run_uncertainty(data, out, workers=None, dask=None, overwrite=False, progres
 
     mapping, inputs, _, target, notes = as_sweep(data)
     run_sweep(mapping, out, workers=workers, dask=dask, overwrite=overwrite, progress=progress,
-              dask_timeout=dask_timeout)
+              dask_timeout=dask_timeout, point_name="uncertainty sample")
     frame = read_results(out)
     stats = analyse(frame, inputs, target, _production(mapping), notes)
     # Beside the results: what lhsim plot --uncertainty draws from.
     side = stats_path(out)
-    side.write_text(json.dumps(_finite(stats), indent=1), encoding="utf-8")
+    side.write_text(json.dumps(json_safe(stats), indent=1), encoding="utf-8")
     return frame, stats
 
 
@@ -289,16 +290,6 @@ def stats_path(out):
 
     out = pathlib.Path(out)
     return out.with_name(out.name + ".uncertainty.json")
-
-
-def _finite(value):
-    if isinstance(value, float) and not math.isfinite(value):
-        return None
-    if isinstance(value, dict):
-        return {k: _finite(v) for k, v in value.items()}
-    if isinstance(value, (list, tuple)):
-        return [_finite(v) for v in value]
-    return value
 
 
 def read_results(path):
@@ -343,7 +334,8 @@ def analyse(frame, inputs, target, production, notes=()):
         ``samples``, ``solved`` (status ok), ``no_liquid``, ``failed``; ``outputs``: per summary
         key its mean, sd, P5, P50, P95 over the solved samples; ``target_L_per_h`` and
         ``probability_of_target`` (fixed compressor flow: the share of all samples that make at
-        least the target; a sample without liquid fails it); ``flow_for_confidence`` (a
+        least the target; a sample without liquid fails it) and its
+        ``probability_of_target_standard_error``; ``flow_for_confidence`` (a
         liquid-rate target: the compressor flow, mass and suction volume, that meets the
         production in 90 and 95 % of the samples, None where more samples than that make no
         liquid); ``sensitivity``: per input and output Spearman's rho; ``sensitivity_method``;
@@ -372,7 +364,10 @@ def analyse(frame, inputs, target, production, notes=()):
         made = frame["liquid_rate_L_per_h"].where(frame["status"] == "ok")
         goal = float(f"{target * 3.6e6:.12g}")  # L/h, as written (no round-off from the unit conversion)
         out["target_L_per_h"] = goal
-        out["probability_of_target"] = float((made >= goal).sum() / n) if n else None
+        out["probability_of_target"] = p = float((made >= goal).sum() / n) if n else None
+        # Its sampling error as for independent samples, sqrt(p (1 - p) / n); a Latin hypercube
+        # does no worse where the liquid rate is monotone in each input (McKay et al. 1979).
+        out["probability_of_target_standard_error"] = math.sqrt(p * (1.0 - p) / n) if n else None
     if production == "liquid_rate" and "compressor_flow_kg_per_h" in frame.columns:
         flows = {}
         for column in ("compressor_flow_kg_per_h", "compressor_suction_volume_flow_m3_per_h"):
@@ -419,8 +414,10 @@ def margin_sentences(stats):
     or the compressor flow that meets the production with each confidence."""
     found = []
     if stats.get("probability_of_target") is not None:
+        se = stats.get("probability_of_target_standard_error")
         found.append(f"probability of making at least {stats['target_L_per_h']:g} L/h at this compressor flow: "
-                     f"{100.0 * stats['probability_of_target']:.1f} %")
+                     f"{100.0 * stats['probability_of_target']:.1f} %"
+                     + (f" (sampling error about {100.0 * se:.1f} %, one standard error)" if se else ""))
     flows = stats.get("flow_for_confidence") or {}
     for column, label, unit in (("compressor_flow_kg_per_h", "compressor flow", "kg/h"),
                                 ("compressor_suction_volume_flow_m3_per_h", "suction volume flow", "m3/h")):
@@ -454,7 +451,9 @@ def format_stats(stats):
                      f"{s['p95']:>11.5g}  {u}")
     margin = margin_sentences(stats)
     if margin:
-        lines += [""] + [f"  {m}" for m in margin]
+        lines.append("")
+        for m in margin:
+            lines += textwrap.wrap(m, 100, initial_indent="  ", subsequent_indent="    ")
     main, ranked, noise = ranked_sensitivity(stats)
     lines += [""] + textwrap.wrap(
         f"What drives the spread: {stats['sensitivity_method']} of each input with each output, largest first "

@@ -1,6 +1,7 @@
 """Make the figures shown in docs/figures.md and the README from the demo scenarios.
 
-Run from the repository root:  python docs/make_figures.py   (or ... sweep: only the sweep charts)
+Run from the repository root:  python docs/make_figures.py   (or ... sweep: only the sweep charts,
+... margins: only the margins chart)
 """
 
 import pathlib
@@ -56,12 +57,25 @@ def sweep_figures():
     return written
 
 
+def margins_figure():
+    """The chart of ``lhsim plot RESULTS --uncertainty`` for the margins demo."""
+    frame, stats = api.uncertainty(ROOT / "scenarios" / "nitrogen-bench-margins.yaml", workers=2)
+    fig, _ = plots.uncertainty_chart(frame, stats)
+    path = IMG / "nitrogen-bench-margins-uncertainty.png"
+    plots.save(fig, path)
+    return [path]
+
+
 def main(argv=None):
-    """``python docs/make_figures.py`` makes every figure; ``... sweep`` only the sweep charts."""
+    """``python docs/make_figures.py`` makes every figure; ``... sweep`` only the sweep charts,
+    ``... margins`` only the margins chart."""
     argv = sys.argv[1:] if argv is None else argv
     IMG.mkdir(parents=True, exist_ok=True)
-    written = [] if argv == ["sweep"] else demo_figures()
-    written += sweep_figures()
+    if argv == ["margins"]:
+        written = margins_figure()
+    else:
+        written = [] if argv == ["sweep"] else demo_figures() + margins_figure()
+        written += sweep_figures()
     for path in written:
         print(f"wrote {path.relative_to(ROOT)}")
 

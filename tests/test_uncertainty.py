@@ -106,6 +106,8 @@ def test_the_demo_states_its_margin(tmp_path):
     made = frame["liquid_rate_L_per_h"]
     assert stats["probability_of_target"] == pytest.approx((made >= 10.0).mean(), abs=1e-12)
     assert 0.5 < stats["probability_of_target"] < 1.0  # measured: 90 %
+    p = stats["probability_of_target"]  # binomial standard error of a share of 200
+    assert stats["probability_of_target_standard_error"] == pytest.approx(math.sqrt(p * (1 - p) / 200), rel=1e-12)
     s = stats["outputs"]["liquid_rate_L_per_h"]
     assert s["p5"] < s["p50"] < s["p95"] and s["p50"] == pytest.approx(np.median(made), rel=1e-12)
     assert "compressor_flow_kg_per_h" not in stats["outputs"]  # the flow is fixed
@@ -206,3 +208,28 @@ def test_the_pictures_and_the_report_section(tmp_path, capsys):
     assert "Spearman" in text and "uniform from 4 W to 9 W" in text
     assert "<h2>Margins</h2>" not in (lambda out: (cli.main(["report", "scenarios/nitrogen-bench.yaml", "--out",
                                                               str(out)]), out.read_text())[1])(tmp_path / "n.html")
+
+
+def test_an_invalid_sample_refuses_the_run_before_any_solves(tmp_path):
+    data = bench({"samples": 8, "high_pressure": {"uniform": ["0.5 bar", "3 bar"]}})
+    # The first sample (of 0.5 to 3 bar) already leaves no room for the aftercooler's 0.4 bar drop.
+    with pytest.raises(ScenarioError, match=r"^uncertainty sample 0 \(high_pressure = '[0-9.]+ bar'\) is invalid: "
+                                            r"aftercooler.pressure_drop must be 0 or more and below high_pressure"):
+        api.uncertainty(data, out=tmp_path / "x.csv")
+    assert not (tmp_path / "x.csv").exists()
+
+
+def test_every_key_of_the_statistics_is_in_the_glossary(tmp_path):
+    import pathlib
+
+    glossary = (pathlib.Path(__file__).resolve().parents[1] / "docs" / "glossary.md").read_text()
+    rated = bench({"samples": 4, "target": "10 L/h", "heat_leak": {"uniform": ["4 W", "9 W"]}},
+                  production={"compressor_flow": "140 kg/h"})
+    sized = bench({"samples": 4, "heat_leak": {"uniform": ["4 W", "9 W"]}})
+    keys = set()
+    for k, data in enumerate((rated, sized)):
+        _, stats = api.uncertainty(data, out=tmp_path / f"{k}.csv")
+        keys |= set(stats) | set(stats["outputs"]) | {s for v in stats["outputs"].values() for s in v}
+        keys |= set(stats.get("flow_for_confidence", {}))
+    for key in sorted(keys):
+        assert f"`{key}`" in glossary, key
