@@ -96,8 +96,9 @@ class ValveSizing:
         }
 
 
-def isentropic_state(fluid, p, s):
-    """(h [J/kg], density [kg/m3]) at ``p`` [Pa] and entropy ``s`` [J/(kg K)].
+def isentropic_state(fluid, p, s, near=None):
+    """(h [J/kg], density [kg/m3]) at ``p`` [Pa] and entropy ``s`` [J/(kg K)] (``near``: (T [K],
+    density [kg/m3]) of a state on the same isentrope, which starts a one-phase solve).
 
     Between the triple-point and the critical pressure the saturation states at ``p`` are taken
     first (cheap: CoolProp's saturation curves); where ``s`` lies between them the state is their
@@ -117,7 +118,7 @@ def isentropic_state(fluid, p, s):
             x = (s - liquid.s) / (vapour.s - liquid.s) if vapour.s > liquid.s else 0.0
             volume = (1.0 - x) / liquid.density + x / vapour.density
             return liquid.h + x * (vapour.h - liquid.h), 1.0 / volume
-    state = fluid.state_ps(p, s)
+    state = fluid.state_ps(p, s, guess=near)
     return state.h, state.density
 
 
@@ -132,7 +133,7 @@ def hem_mass_flux(fluid, inlet, p):
 
     for nudge in PRESSURE_NUDGES:
         try:
-            h, density = isentropic_state(fluid, p * (1.0 + nudge), inlet.s)
+            h, density = isentropic_state(fluid, p * (1.0 + nudge), inlet.s, near=(inlet.T, inlet.density))
             break
         except PropertyRangeError:
             if nudge == PRESSURE_NUDGES[-1]:

@@ -245,23 +245,33 @@ class ExchangerProfile:
             return math.inf
         a, b = dT[:-1], dT[1:]
         with np.errstate(divide="ignore", invalid="ignore"):
-            lmtd = np.where(np.isclose(a, b, rtol=1e-9, atol=0.0), 0.5 * (a + b), (a - b) / np.log(a / b))
+            lmtd = np.where(np.abs(a - b) <= 1e-9 * np.abs(b), 0.5 * (a + b), (a - b) / np.log(a / b))
         return float(np.sum(np.diff(self.duty) / lmtd))
 
 
-def _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones):
+def _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones, estimate=False):
     """Zone boundaries of the high-pressure stream, cold end first: duty fraction, cumulative
-    duty [J/kg], pressure [Pa] (falling in proportion to the duty) and temperature [K]."""
+    duty [J/kg], pressure [Pa] (falling in proportion to the duty) and temperature [K] (None
+    where ``estimate`` and nothing to estimate from)."""
     frac = np.linspace(0.0, 1.0, zones + 1)
     q = duty * frac
     h_hot = (hot_in.h - duty / hot_flow) + q / hot_flow
     p_hot = hot_p_out + frac * (hot_in.p - hot_p_out)
-    hot_T = np.append(fluid.temperatures_ph(p_hot[:-1], h_hot[:-1]), hot_in.T)
+    # Marched from the warm end, where the inlet state starts it.
+    p_warm, h_warm = p_hot[-2::-1], h_hot[-2::-1]
+    if estimate:
+        estimator = getattr(fluid, "estimate_temperatures_ph", None)
+        warm_first = None if estimator is None else estimator(p_warm, h_warm)
+        if warm_first is None:
+            return frac, q, p_hot, None
+    else:
+        warm_first = fluid.temperatures_ph(p_warm, h_warm, first=(hot_in.T, hot_in.density))
+    hot_T = np.append(warm_first[::-1], hot_in.T)
     return frac, q, p_hot, hot_T
 
 
 def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out, cold_flow, duty, zones,
-                        cold_fluid=None):
+                        cold_fluid=None, estimate=False):
     """March a counterflow exchanger in ``zones`` equal-duty zones.
 
     Pressure falls on each side in proportion to the duty passed (a modelling choice:
@@ -287,15 +297,27 @@ def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out,
     cold_fluid : properties.Fluid, optional
         The cold stream's fluid where it differs from the hot stream's (hydrogen of another
         para fraction); default ``fluid``.
+    estimate : bool
+        Estimate the temperatures from the nearest march the fluids remember
+        (:meth:`properties.Fluid.estimate_temperatures_ph`, no property call) instead of
+        marching; None where they remember none.
 
     Returns
     -------
-    ExchangerProfile
+    ExchangerProfile or None
     """
-    frac, q, p_hot, hot_T = _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones)
+    frac, q, p_hot, hot_T = _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones, estimate)
     h_cold = cold_in.h + q / cold_flow
     p_cold = cold_in.p + frac * (cold_p_out - cold_in.p)
-    cold_T = np.insert((cold_fluid or fluid).temperatures_ph(p_cold[1:], h_cold[1:]), 0, cold_in.T)
+    cold = cold_fluid or fluid
+    if estimate:
+        estimator = getattr(cold, "estimate_temperatures_ph", None)
+        marched = None if hot_T is None or estimator is None else estimator(p_cold[1:], h_cold[1:])
+        if marched is None:
+            return None
+    else:
+        marched = cold.temperatures_ph(p_cold[1:], h_cold[1:])
+    cold_T = np.insert(marched, 0, cold_in.T)
     return ExchangerProfile(q, hot_T, cold_T, p_hot, p_cold)
 
 

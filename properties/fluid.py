@@ -196,8 +196,16 @@ class Fluid:
         self._check_result(asked)
         return self._polished(self._snapshot(p), h=h, asked=asked)
 
-    def state_ps(self, p, s):
-        """State at pressure ``p`` [Pa] and specific entropy ``s`` [J/(kg K)]."""
+    def state_ps(self, p, s, guess=None):
+        """State at pressure ``p`` [Pa] and specific entropy ``s`` [J/(kg K)].
+
+        ``guess`` is (T [K], density [kg/m3]) of a nearby state: a one-phase state is then
+        solved by Newton's method from it (a density-temperature update a step, where the flash
+        costs some fifty), and the flash is the fall-back."""
+        if guess is not None:
+            found = self._march.state_ps(p, s, (float(guess[0]), float(guess[1]) / self.molar_mass))
+            if found is not None:
+                return found
         asked = f"p = {_fmt_p(p)}, s = {s / 1e3:.6g} kJ/(kg K)"
         self._update(CP.PSmass_INPUTS, self._flash_pressure(p, asked), s, asked)
         self._check_result(asked)
@@ -327,12 +335,29 @@ class Fluid:
                     starts.append(None)
         return self._march.march(p, h, starts)
 
-    def temperatures_ph(self, pressures, enthalpies):
+    def temperatures_ph(self, pressures, enthalpies, first=None):
         """Temperatures [K] of many (p, h) states along one stream: :meth:`states_ph` without
-        building the state objects (the exchanger march needs temperatures only)."""
+        building the state objects (the exchanger march needs temperatures only).
+
+        ``first`` is (T [K], density [kg/m3]) near the first state (otherwise found by CoolProp's
+        flash where no saturation data start it).  Within :meth:`remembering`, a march along the
+        same pressures as an earlier one starts from the linear estimate around it."""
         h = np.atleast_1d(np.asarray(enthalpies, dtype=float))
         p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
-        return np.array(self._march.march(p, h, full=False))
+        return self._march.temperatures(p, h, first)
+
+    def estimate_temperatures_ph(self, pressures, enthalpies):
+        """Temperatures [K] along one stream estimated from the nearest march made within
+        :meth:`remembering` (linear in the changes of p and h, no property call), or None."""
+        h = np.atleast_1d(np.asarray(enthalpies, dtype=float))
+        p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
+        return self._march.estimate(p, h)
+
+    def remembering(self):
+        """A context in which exchanger marches start from the nearest earlier one
+        (:meth:`properties.march.PhMarch.remembering`): a design point's root finder marches
+        the same exchanger at nearby duties."""
+        return self._march.remembering()
 
     def march_ph(self, pressures, enthalpies, guesses=None, first=None):
         """Many (p, h) states along one stream as arrays, with their sensitivities to p and h

@@ -229,8 +229,10 @@ class _MixedHydrogen:
         """State at ``p`` [Pa] and ``h`` [J/kg]: one-phase, bridged band or two-phase."""
         return self._solve(p, h, "h")
 
-    def state_ps(self, p, s):
-        """State at ``p`` [Pa] and ``s`` [J/(kg K)]: one-phase, bridged band or two-phase."""
+    def state_ps(self, p, s, guess=None):
+        """State at ``p`` [Pa] and ``s`` [J/(kg K)]: one-phase, bridged band or two-phase
+        (``guess`` is accepted for the interface of :meth:`properties.Fluid.state_ps`; the
+        solve starts from its own)."""
         return self._solve(p, s, "s")
 
     def states_ph(self, pressures, enthalpies):
@@ -239,14 +241,14 @@ class _MixedHydrogen:
         p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
         return [self.state_ph(float(pk), float(hk)) for pk, hk in zip(p, h)]
 
-    def temperatures_ph(self, pressures, enthalpies):
+    def temperatures_ph(self, pressures, enthalpies, first=None):
         """Temperatures [K] of many (p, h) states along one stream, each by Newton's method from
-        the one before (the first from :meth:`state_ph`); a state Newton cannot settle (near
-        saturation) is solved by :meth:`state_ph`."""
+        the one before (the first from :meth:`state_ph`, or from ``first``, (T [K], density)
+        near it); a state Newton cannot settle (near saturation) is solved by :meth:`state_ph`."""
         h = np.atleast_1d(np.asarray(enthalpies, dtype=float))
         p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
         out = np.empty(h.shape)
-        T = None
+        T = None if first is None else float(first[0])
         for k in range(h.size):
             found = self._newton_T(float(p[k]), float(h[k]), T) if T is not None else None
             if found is None:

@@ -11,6 +11,7 @@ pseudo-pure fluid's two-phase band, no convergence in a few steps - goes to Cool
 flash, so the answers are those of HEOS.
 """
 
+import contextlib
 import math
 from typing import NamedTuple
 
@@ -20,9 +21,13 @@ from CoolProp import CoolProp as CP
 from properties.state import State, two_phase_label
 
 _MAX_STEPS = 25
+# Marches kept by PhMarch.remembering (a root finder's last few iterates, both sides of an exchanger).
+_REMEMBERED = 8
 # Converged when p is met to 1e-11 relative and h to 1e-7 J/kg (about 1e-10 K at cp ~ 1 kJ/(kg K)).
 _P_RTOL = 1e-11
 _H_ATOL = 1e-7
+# A (p, s) state meets s to 1e-10 J/(kg K) (T ds below 1e-7 J/kg up to 1000 K).
+_S_ATOL = 1e-10
 
 
 def _extrapolated(last, h):
@@ -79,6 +84,20 @@ class PhMarch:
         self._bounds = {}
         self.newton_states = 0
         self.flash_states = 0
+        self._memory = None  # recent marches (pressures, enthalpies, Marched) while remembering
+
+    @contextlib.contextmanager
+    def remembering(self):
+        """Within the block, a temperature march (:meth:`temperatures`) starts every state from
+        the linear estimate around the nearest march already made along the same pressures (a
+        root finder's earlier iterate): one Newton step where there were two or three.  What
+        is remembered is forgotten at the end, so each block's answers depend on its own calls
+        only (a design point solves the same whatever was solved before it)."""
+        outer, self._memory = self._memory, []
+        try:
+            yield self
+        finally:
+            self._memory = outer
 
     def bounds(self, p):
         """Saturation data at ``p`` [Pa]: (T_bubble, T_dew, h_l, h_v, s_l, s_v, D_l, D_v), or None
@@ -149,6 +168,34 @@ class PhMarch:
         return State(fl.name, T, float(p), float(h), st.smass(), st.rhomass(), None,
                      fl._phase_name(st.phase()))
 
+    def state_ps(self, p, s, guess):
+        """The one-phase state at (p, s) [Pa, J/(kg K)] by Newton's method from ``guess``, (T [K],
+        molar density [mol/m3]) of a nearby state (a valve's inlet, for the states along its
+        isentrope); None where it does not settle there on the right side of the saturation
+        curve, or the state is two-phase (the caller's flash or mixture then decides)."""
+        fl = self.fluid
+        if not (0.0 < p <= fl.p_max) or abs(p / fl.p_critical - 1.0) < 1e-9 or s != s:
+            return None
+        sat = self.bounds(p)
+        side = None
+        if sat is not None:
+            T_b, T_d, _, _, s_l, s_v, D_l, D_v = sat
+            if s_l <= s <= s_v or abs(T_d - T_b) > 1e-9 * T_b:
+                return None
+            side = "liquid" if s < s_l else "vapour"
+            if (side == "liquid" and guess[0] >= T_b) or (side == "vapour" and guess[0] <= T_d):
+                guess = (T_b * (1 - 1e-4), D_l) if side == "liquid" else (T_d * (1 + 1e-4), D_v)
+        found = self._newton(p, s, guess[0], guess[1], entropy=True)
+        if found is None:
+            return None
+        T, _ = found
+        if sat is not None and ((side == "liquid" and T > sat[0]) or (side == "vapour" and T < sat[1])):
+            return None
+        if not fl.T_min <= T <= fl.T_max or (T < 2.0 * fl.T_triple and self._below_melting(T, p)):
+            return None
+        st = self.state
+        return State(fl.name, T, float(p), st.hmass(), float(s), st.rhomass(), None, fl._phase_name(st.phase()))
+
     def _below_melting(self, T, p):
         T_melt = self.fluid.melting_temperature(p)
         return T_melt is not None and T < T_melt
@@ -159,25 +206,27 @@ class PhMarch:
                 st.first_partial_deriv(CP.iHmass, CP.iT, CP.iDmolar),
                 st.first_partial_deriv(CP.iHmass, CP.iDmolar, CP.iT))
 
-    def _newton(self, p, h, T, D, final_step=False, jacobian=None):
+    def _newton(self, p, h, T, D, final_step=False, jacobian=None, entropy=False):
         """Newton's method on (T, D); with ``final_step`` a last step small enough that the
         next would change T by far less than 1e-6 K (quadratic convergence) is taken without
         evaluating the state there (temperature-only marches).  A list given as ``jacobian``
-        receives the last partial derivatives evaluated (empty if none was)."""
+        receives the last partial derivatives evaluated (empty if none was).  With ``entropy``,
+        ``h`` is a specific entropy [J/(kg K)] to meet (a (p, s) state) instead."""
         st = self.state
+        second, value, atol = (CP.iSmass, st.smass, _S_ATOL) if entropy else (CP.iHmass, st.hmass, _H_ATOL)
         for _ in range(_MAX_STEPS):
             try:
                 st.update(CP.DmolarT_INPUTS, D, T)
             except ValueError:
                 return None
             f_p = st.p() - p
-            f_h = st.hmass() - h
-            if abs(f_p) <= _P_RTOL * p and abs(f_h) <= _H_ATOL:
+            f_h = value() - h
+            if abs(f_p) <= _P_RTOL * p and abs(f_h) <= atol:
                 return T, D
             dp_dT = st.first_partial_deriv(CP.iP, CP.iT, CP.iDmolar)
             dp_dD = st.first_partial_deriv(CP.iP, CP.iDmolar, CP.iT)
-            dh_dT = st.first_partial_deriv(CP.iHmass, CP.iT, CP.iDmolar)
-            dh_dD = st.first_partial_deriv(CP.iHmass, CP.iDmolar, CP.iT)
+            dh_dT = st.first_partial_deriv(second, CP.iT, CP.iDmolar)
+            dh_dD = st.first_partial_deriv(second, CP.iDmolar, CP.iT)
             det = dp_dT * dh_dD - dp_dD * dh_dT
             if det == 0.0 or not math.isfinite(det):
                 return None
@@ -254,3 +303,47 @@ class PhMarch:
                 dT_dp[k], dT_dh[k] = dh_dD / det, -dp_dD / det
                 drho_dp[k], drho_dh[k] = -dh_dT / det * M, dp_dT / det * M
         return Marched(T, rho, dT_dp, dT_dh, drho_dp, drho_dh, q)
+
+    def temperatures(self, pressures, enthalpies, first=None):
+        """Temperatures [K] of the states in order (:meth:`march_sensitivities`), started where
+        :meth:`remembering` has a march along the same pressures from the linear estimate
+        around it, otherwise from the neighbouring states (``first``: (T, density) near the
+        first)."""
+        p = np.asarray(pressures, dtype=float)
+        h = np.asarray(enthalpies, dtype=float)
+        guesses = self._estimate(p, h) if self._memory is not None else None
+        marched = self.march_sensitivities(p, h, guesses, None if guesses is not None else first)
+        if self._memory is not None:
+            self._memory.append((p.copy(), h.copy(), marched))
+            del self._memory[:-_REMEMBERED]
+        return marched.T
+
+    def estimate(self, pressures, enthalpies):
+        """Temperatures [K] of the states at ``pressures``, ``enthalpies`` estimated, without a
+        property call, from the nearest march remembered (:meth:`remembering`) by its linear
+        sensitivities; None where nothing near is remembered.  Its error is of second order in
+        the change of enthalpy and pressure (what a root finder steps on)."""
+        if not self._memory:
+            return None
+        found = self._estimate(np.asarray(pressures, dtype=float), np.asarray(enthalpies, dtype=float))
+        return None if found is None else found[0]
+
+    def _estimate(self, p, h):
+        """(T, density) estimates of the states at ``p``, ``h`` from the nearest remembered
+        march of as many states at pressures within 0.1 %, or None."""
+        best, gap = None, math.inf
+        for P, H, m in self._memory:
+            if P.shape != p.shape or not all(abs(P[k] - p[k]) <= 1e-3 * abs(p[k]) for k in (0, len(p) // 2, -1)):
+                continue  # (only a start is chosen: three pressures are enough to tell)
+            d = float(np.max(np.abs(H - h)))
+            if d < gap:
+                best, gap = (P, H, m), d
+        if best is None:
+            return None
+        P, H, m = best
+        dp, dh = p - P, h - H
+        T = m.T + m.dT_dp * dp + m.dT_dh * dh
+        rho = m.density + m.drho_dp * dp + m.drho_dh * dh
+        bad = ~((T > 0) & (rho > 0))
+        T[bad], rho[bad] = m.T[bad], m.density[bad]
+        return T, rho

@@ -170,3 +170,48 @@ def test_transport_at_temperature_and_density_equals_that_at_temperature_and_pre
     with pytest.raises(PropertyRangeError, match="transport"):
         # inside the dome at 77 K: a two-phase state has no transport property
         n2.transport_td([77.0], [100.0])
+
+
+def test_a_remembered_march_starts_from_the_last_and_gives_the_same_temperatures():
+    # A root finder's marches along the same pressures at nearby enthalpies: within remembering
+    # each starts from the linear estimate around the nearest, with the answers of a fresh march
+    # (1e-6 K, the march's own tolerance against the flash) and fewer density-temperature updates.
+    n2 = fresh("nitrogen")
+    p = np.linspace(199.4e5, 200e5, 50)
+    h = np.linspace(n2.state_tp(120.0, 199.4e5).h, n2.state_tp(299.0, 200e5).h, 50)
+    cold = fresh("nitrogen").temperatures_ph(p, h + 150.0)
+    assert n2.estimate_temperatures_ph(p, h) is None  # nothing remembered outside the block
+    with n2.remembering():
+        first = n2.temperatures_ph(p, h)
+        # The estimate where the march was made is the march; 150 J/kg away it is of second order.
+        assert n2.estimate_temperatures_ph(p, h) == pytest.approx(first, abs=1e-12)
+        estimate = n2.estimate_temperatures_ph(p, h + 150.0)
+        assert np.max(np.abs(estimate - cold)) < 1e-3
+        before = n2._march.newton_states, n2._march.flash_states
+        again = n2.temperatures_ph(p, h + 150.0)
+        assert n2._march.flash_states == before[1]  # the first state no longer needs the flash
+    assert again == pytest.approx(cold, abs=1e-6)
+    assert n2.estimate_temperatures_ph(p, h) is None  # forgotten after it
+
+
+@pytest.mark.parametrize("name, p, T0", [("nitrogen", 200e5, 130.0), ("nitrogen", 60e5, 300.0), ("argon", 150e5, 160.0),
+                                          ("methane", 100e5, 200.0), ("helium", 20e5, 10.0), ("neon", 40e5, 50.0)])
+def test_a_ps_state_from_a_nearby_state_is_the_flash(name, p, T0):
+    # Along a valve's isentrope from its inlet: Newton's method from the inlet state against
+    # CoolProp's (p, s) flash, in temperature (1e-6 K) and enthalpy (1e-4 J/kg).
+    fl = fresh(name)
+    inlet = fl.state_tp(T0, p)
+    solved = 0  # one-phase states Newton's method settles (the two-phase ones go to the flash)
+    for ratio in (0.999, 0.9, 0.6, 0.3, 0.1, 0.03):
+        pk = p * ratio
+        try:
+            flash = fl.state_ps(pk, inlet.s)
+        except PropertyRangeError:
+            continue
+        newton = fl.state_ps(pk, inlet.s, guess=(inlet.T, inlet.density))
+        assert newton.T == pytest.approx(flash.T, abs=1e-6), (name, pk)
+        assert newton.h == pytest.approx(flash.h, abs=1e-4), (name, pk)
+        assert newton.density == pytest.approx(flash.density, rel=1e-8)
+        assert (newton.quality is None) == (flash.quality is None)
+        solved += fl._march.state_ps(pk, inlet.s, (inlet.T, inlet.density / fl.molar_mass)) is not None
+    assert solved >= 2
