@@ -393,17 +393,27 @@ class Recuperator:
             fluid, hot_in, hot_p_out, 1.0,
             [(st, self.cold_outlet_pressure(st.p), flow) for st, flow in colds], duty, zones)
 
-    def estimated_profile(self, fluid, hot_in, colds, duty, cold_fluid=None):
-        """The profile at ``duty`` estimated from the nearest march the fluids remember, with no
-        property call (:func:`cycle.processes.counterflow_profile` with ``estimate``); None for a
-        recuperator given by its geometry or with several cold streams, or with nothing to
-        estimate from."""
+    def estimator(self, fluid, hot_in, colds, duty, cold_fluid=None):
+        """From the march just made at ``duty``, a function ``estimate(duty, colds) -> (min
+        approach [K], UA per unit flow)`` at other duties with no property call
+        (:func:`cycle.processes.counterflow_estimator`); None for a recuperator given by its
+        geometry or with several cold streams, or with nothing remembered to estimate from."""
         if self.geometry is not None or len(colds) != 1:
             return None
         (cold_in, flow), = colds
-        return processes.counterflow_profile(fluid, hot_in, self.hot_outlet_pressure(hot_in.p), 1.0, cold_in,
-                                             self.cold_outlet_pressure(cold_in.p), flow, duty, self.zones,
-                                             cold_fluid=cold_fluid, estimate=True)
+        found = processes.counterflow_estimator(fluid, hot_in, self.hot_outlet_pressure(hot_in.p), 1.0, cold_in,
+                                                self.cold_outlet_pressure(cold_in.p), flow, duty, self.zones,
+                                                cold_fluid=cold_fluid)
+        if found is None:
+            return None
+
+        def estimate(Q, colds):
+            if len(colds) != 1:
+                return None
+            (cold_in, flow), = colds
+            return found(Q, cold_in, self.cold_outlet_pressure(cold_in.p), flow)
+
+        return estimate
 
     def max_hot_duty(self, fluid, hot_in, T_floor):
         """Duty that cools the hot stream to ``T_floor`` [K] (or its melting line) [J/kg compressed]."""

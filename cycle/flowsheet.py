@@ -157,11 +157,13 @@ class Section:
             self._profiles[duty] = found
         return found
 
-    def estimated_profile(self, duty):
-        """The profile at ``duty`` estimated from the nearest march made (no property call), or
-        None (:meth:`cycle.equipment.Recuperator.estimated_profile`)."""
-        return self.recuperator.estimated_profile(self.fluid, self.hot_in, self.colds_of(duty), duty,
-                                                  self.cold_fluid)
+    def estimator(self, duty):
+        """From the march at ``duty`` (made first if need be), ``estimate(duty) -> (min approach
+        [K], UA per unit flow)`` at other duties with no property call, or None
+        (:meth:`cycle.equipment.Recuperator.estimator`)."""
+        self.profile(duty)
+        found = self.recuperator.estimator(self.fluid, self.hot_in, self.colds_of(duty), duty, self.cold_fluid)
+        return None if found is None else (lambda d: found(d, self.colds_of(d)))
 
     def duty_for_outlet(self, approach, Q_hi):
         """Duty at which the cold streams leave ``approach`` [K] below the hot inlet temperature
@@ -397,7 +399,7 @@ ESTIMATE_STEPS = 8
 def _steps_on_estimates(section, flow_of, target, guess, lowest_duty, Q_hi, tol):
     """The duty at which the UA meets ``target`` by Newton's method on the march: each real
     march at a duty is followed by the root, near it, of the UA of profiles estimated from that
-    march by its linear sensitivities (:meth:`Section.estimated_profile`, no property call),
+    march by its linear sensitivities (:meth:`Section.estimator`, no property call),
     found by secant steps; the next march is made there.  The estimate is exact at the march
     and its error is of second order in the duty step, so the marches converge quadratically:
     three to five from the effectiveness-NTU guess where Brent's method needs eight.
@@ -410,12 +412,12 @@ def _steps_on_estimates(section, flow_of, target, guess, lowest_duty, Q_hi, tol)
 
     def estimated(duty):
         m = flow_of(duty)
-        prof = section.estimated_profile(duty) if math.isfinite(m) else None
-        if prof is None or prof.min_approach <= TOUCH_APPROACH:
+        found = model(duty) if math.isfinite(m) else None
+        if found is None or found[0] <= TOUCH_APPROACH:
             return None
-        return m * prof.ua() - target
+        return m * found[1] - target
 
-    duty = guess
+    duty, slope = guess, None
     for step in range(1, ESTIMATE_STEPS + 1):
         m = flow_of(duty)
         if not math.isfinite(m):
@@ -424,27 +426,30 @@ def _steps_on_estimates(section, flow_of, target, guess, lowest_duty, Q_hi, tol)
         if prof.min_approach <= TOUCH_APPROACH:
             return None
         x0, g0 = duty, m * prof.ua() - target
-        x1 = duty + max(1e-6 * Q_hi, 10.0 * tol) * (1.0 if duty < 0.5 * (lowest_duty + Q_hi) else -1.0)
-        g1 = estimated(x1)
-        if g1 is None:
+        model = section.estimator(duty)
+        if model is None:
             return None
-        slope = (g1 - g0) / (x1 - x0)
+        if slope is None:  # the first march: the slope of the estimate a small step away
+            x1 = duty + max(1e-6 * Q_hi, 10.0 * tol) * (1.0 if duty < 0.5 * (lowest_duty + Q_hi) else -1.0)
+            g1 = estimated(x1)
+            if g1 is None or g1 == g0:
+                return None
+            slope = (g1 - g0) / (x1 - x0)
         nxt = None
-        for _ in range(40):  # secant steps on the estimate (cheap)
-            if g1 == g0:
-                break
-            x2 = x1 - g1 * (x1 - x0) / (g1 - g0)
-            if not lowest_duty < x2 < Q_hi:
+        for _ in range(40):  # secant steps on the estimate (cheap), from the last slope
+            x1 = x0 - g0 / slope
+            if not lowest_duty < x1 < Q_hi:
                 return None
             # Far from the root the next march corrects what the estimate misses: the secant
             # steps need only settle to a thousandth of the step; near it, to a tenth of tol.
-            if abs(x2 - x1) <= max(0.1 * tol, 1e-3 * abs(x2 - duty)):
-                nxt = x2
+            if abs(x1 - x0) <= max(0.1 * tol, 1e-3 * abs(x1 - duty)):
+                nxt = x1
                 break
-            g2 = estimated(x2)
-            if g2 is None:
+            g1 = estimated(x1)
+            if g1 is None or g1 == g0:
                 return None
-            x0, g0, x1, g1 = x1, g1, x2, g2
+            slope = (g1 - g0) / (x1 - x0)
+            x0, g0 = x1, g1
         if nxt is None or not slope > 0:
             return None
         if abs(nxt - duty) <= tol:

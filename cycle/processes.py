@@ -240,38 +240,35 @@ class ExchangerProfile:
 
         Infinite where the streams touch or cross.
         """
-        dT = self.approach
-        if np.any(dT <= 0):
-            return math.inf
-        a, b = dT[:-1], dT[1:]
-        with np.errstate(divide="ignore", invalid="ignore"):
-            lmtd = np.where(np.abs(a - b) <= 1e-9 * np.abs(b), 0.5 * (a + b), (a - b) / np.log(a / b))
-        return float(np.sum(np.diff(self.duty) / lmtd))
+        return _ua_per_flow(self.duty, self.approach)
 
 
-def _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones, estimate=False):
+def _ua_per_flow(duty, approach):
+    """Sum of zone duty over zone LMTD [W/K per kg/s] of a profile's cumulative ``duty`` [J/kg]
+    and ``approach`` [K] at the zone boundaries; infinite where the streams touch or cross."""
+    if np.any(approach <= 0):
+        return math.inf
+    a, b = approach[:-1], approach[1:]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        lmtd = np.where(np.abs(a - b) <= 1e-9 * np.abs(b), 0.5 * (a + b), (a - b) / np.log(a / b))
+    return float(np.sum(np.diff(duty) / lmtd))
+
+
+def _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones):
     """Zone boundaries of the high-pressure stream, cold end first: duty fraction, cumulative
-    duty [J/kg], pressure [Pa] (falling in proportion to the duty) and temperature [K] (None
-    where ``estimate`` and nothing to estimate from)."""
+    duty [J/kg], pressure [Pa] (falling in proportion to the duty) and temperature [K]."""
     frac = np.linspace(0.0, 1.0, zones + 1)
     q = duty * frac
     h_hot = (hot_in.h - duty / hot_flow) + q / hot_flow
     p_hot = hot_p_out + frac * (hot_in.p - hot_p_out)
     # Marched from the warm end, where the inlet state starts it.
-    p_warm, h_warm = p_hot[-2::-1], h_hot[-2::-1]
-    if estimate:
-        estimator = getattr(fluid, "estimate_temperatures_ph", None)
-        warm_first = None if estimator is None else estimator(p_warm, h_warm)
-        if warm_first is None:
-            return frac, q, p_hot, None
-    else:
-        warm_first = fluid.temperatures_ph(p_warm, h_warm, first=(hot_in.T, hot_in.density))
+    warm_first = fluid.temperatures_ph(p_hot[-2::-1], h_hot[-2::-1], first=(hot_in.T, hot_in.density))
     hot_T = np.append(warm_first[::-1], hot_in.T)
     return frac, q, p_hot, hot_T
 
 
 def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out, cold_flow, duty, zones,
-                        cold_fluid=None, estimate=False):
+                        cold_fluid=None):
     """March a counterflow exchanger in ``zones`` equal-duty zones.
 
     Pressure falls on each side in proportion to the duty passed (a modelling choice:
@@ -297,28 +294,59 @@ def counterflow_profile(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out,
     cold_fluid : properties.Fluid, optional
         The cold stream's fluid where it differs from the hot stream's (hydrogen of another
         para fraction); default ``fluid``.
-    estimate : bool
-        Estimate the temperatures from the nearest march the fluids remember
-        (:meth:`properties.Fluid.estimate_temperatures_ph`, no property call) instead of
-        marching; None where they remember none.
 
     Returns
     -------
-    ExchangerProfile or None
+    ExchangerProfile
     """
-    frac, q, p_hot, hot_T = _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones, estimate)
+    frac, q, p_hot, hot_T = _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones)
     h_cold = cold_in.h + q / cold_flow
     p_cold = cold_in.p + frac * (cold_p_out - cold_in.p)
-    cold = cold_fluid or fluid
-    if estimate:
-        estimator = getattr(cold, "estimate_temperatures_ph", None)
-        marched = None if hot_T is None or estimator is None else estimator(p_cold[1:], h_cold[1:])
-        if marched is None:
-            return None
-    else:
-        marched = cold.temperatures_ph(p_cold[1:], h_cold[1:])
-    cold_T = np.insert(marched, 0, cold_in.T)
+    cold_T = np.insert((cold_fluid or fluid).temperatures_ph(p_cold[1:], h_cold[1:]), 0, cold_in.T)
     return ExchangerProfile(q, hot_T, cold_T, p_hot, p_cold)
+
+
+def counterflow_estimator(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_out, cold_flow, duty, zones,
+                          cold_fluid=None):
+    """The pinch and UA of the exchanger of :func:`counterflow_profile` at other duties, estimated
+    from its march at ``duty`` (remembered by the fluids: :meth:`properties.Fluid.remembering`)
+    by the marched states' linear sensitivities, with no property call; the error is of second
+    order in the change of duty.  What a root finder steps on between marches.
+
+    Returns
+    -------
+    callable or None
+        ``estimate(duty, cold_in, cold_p_out, cold_flow) -> (min approach [K], UA per unit
+        flow [W/K per kg/s])``; None where either side's march is not remembered.
+    """
+    frac = np.linspace(0.0, 1.0, zones + 1)
+    h_hot = (hot_in.h - duty / hot_flow) + duty * frac / hot_flow
+    p_hot = hot_p_out + frac * (hot_in.p - hot_p_out)
+    h_cold = cold_in.h + duty * frac / cold_flow
+    p_cold = cold_in.p + frac * (cold_p_out - cold_in.p)
+    hot_ref = getattr(fluid, "march_reference", lambda p, h: None)(p_hot[-2::-1], h_hot[-2::-1])
+    cold = cold_fluid or fluid
+    cold_ref = getattr(cold, "march_reference", lambda p, h: None)(p_cold[1:], h_cold[1:])
+    if hot_ref is None or cold_ref is None:
+        return None
+    P, H, m = hot_ref
+    # The hot side (cold end first) is linear in the duty: T = a + b Q.
+    a = (m.T + m.dT_dh * (hot_in.h - H) + m.dT_dp * (p_hot[-2::-1] - P))[::-1]
+    b = (-m.dT_dh * (1.0 - frac[-2::-1]) / hot_flow)[::-1]
+    Pc, Hc, mc = cold_ref
+    hot_T = np.empty(zones + 1)
+    hot_T[-1] = hot_in.T
+    cold_T = np.empty(zones + 1)
+
+    def estimate(Q, cold_in, cold_p_out, cold_flow):
+        hot_T[:-1] = a + b * Q
+        cold_T[0] = cold_in.T
+        cold_T[1:] = (mc.T + mc.dT_dh * (cold_in.h + Q * frac[1:] / cold_flow - Hc)
+                      + mc.dT_dp * (cold_in.p + frac[1:] * (cold_p_out - cold_in.p) - Pc))
+        approach = hot_T - cold_T
+        return float(np.min(approach)), _ua_per_flow(Q * frac, approach)
+
+    return estimate
 
 
 def _h_at(fluid, T, p, state_in):

@@ -346,12 +346,14 @@ class Fluid:
         p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
         return self._march.temperatures(p, h, first)
 
-    def estimate_temperatures_ph(self, pressures, enthalpies):
-        """Temperatures [K] along one stream estimated from the nearest march made within
-        :meth:`remembering` (linear in the changes of p and h, no property call), or None."""
+    def march_reference(self, pressures, enthalpies):
+        """The nearest march made within :meth:`remembering` along these pressures, as
+        (pressures, enthalpies, :class:`properties.march.Marched`), or None
+        (:meth:`properties.march.PhMarch.reference`): what temperatures near it are estimated
+        from, linearly in the changes of p and h, with no property call."""
         h = np.atleast_1d(np.asarray(enthalpies, dtype=float))
         p = np.broadcast_to(np.asarray(pressures, dtype=float), h.shape)
-        return self._march.estimate(p, h)
+        return self._march.reference(p, h)
 
     def remembering(self):
         """A context in which exchanger marches start from the nearest earlier one

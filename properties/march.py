@@ -22,7 +22,7 @@ from properties.state import State, two_phase_label
 
 _MAX_STEPS = 25
 # Marches kept by PhMarch.remembering (a root finder's last few iterates, both sides of an exchanger).
-_REMEMBERED = 8
+_REMEMBERED = 6
 # Converged when p is met to 1e-11 relative and h to 1e-7 J/kg (about 1e-10 K at cp ~ 1 kJ/(kg K)).
 _P_RTOL = 1e-11
 _H_ATOL = 1e-7
@@ -318,19 +318,16 @@ class PhMarch:
             del self._memory[:-_REMEMBERED]
         return marched.T
 
-    def estimate(self, pressures, enthalpies):
-        """Temperatures [K] of the states at ``pressures``, ``enthalpies`` estimated, without a
-        property call, from the nearest march remembered (:meth:`remembering`) by its linear
-        sensitivities; None where nothing near is remembered.  Its error is of second order in
-        the change of enthalpy and pressure (what a root finder steps on)."""
+    def reference(self, pressures, enthalpies):
+        """The nearest march remembered (:meth:`remembering`) along these pressures, as
+        (pressures [Pa], enthalpies [J/kg], :class:`Marched`), or None: the states and linear
+        sensitivities from which temperatures near it are estimated without a property call,
+        T = T_ref + dT/dp (p - p_ref) + dT/dh (h - h_ref), to second order in the change."""
         if not self._memory:
             return None
-        found = self._estimate(np.asarray(pressures, dtype=float), np.asarray(enthalpies, dtype=float))
-        return None if found is None else found[0]
+        return self._nearest(np.asarray(pressures, dtype=float), np.asarray(enthalpies, dtype=float))
 
-    def _estimate(self, p, h):
-        """(T, density) estimates of the states at ``p``, ``h`` from the nearest remembered
-        march of as many states at pressures within 0.1 %, or None."""
+    def _nearest(self, p, h):
         best, gap = None, math.inf
         for P, H, m in self._memory:
             if P.shape != p.shape or not all(abs(P[k] - p[k]) <= 1e-3 * abs(p[k]) for k in (0, len(p) // 2, -1)):
@@ -338,6 +335,12 @@ class PhMarch:
             d = float(np.max(np.abs(H - h)))
             if d < gap:
                 best, gap = (P, H, m), d
+        return best
+
+    def _estimate(self, p, h):
+        """(T, density) estimates of the states at ``p``, ``h`` from the nearest remembered
+        march of as many states at pressures within 0.1 %, or None."""
+        best = self._nearest(p, h)
         if best is None:
             return None
         P, H, m = best
