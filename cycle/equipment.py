@@ -315,7 +315,8 @@ class MakeupMixer:
 
     def run(self, fluid, return_state, return_flow, makeup_flow, makeup_fluid=None):
         makeup = self.makeup_state(makeup_fluid or fluid)
-        return processes.mix(fluid, self.pressure, [(return_flow, return_state.h), (makeup_flow, makeup.h)])
+        near = return_state if return_flow >= makeup_flow else None
+        return processes.mix(fluid, self.pressure, [(return_flow, return_state.h), (makeup_flow, makeup.h)], near=near)
 
 
 class Recuperator:

@@ -356,6 +356,18 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
     return duty, profile, report
 
 
+def _state_at_end(fluid, p, h, T):
+    """The state at ``p`` [Pa], ``h`` [J/kg] at an exchanger's end, started from the march's
+    temperature ``T`` [K] there (the flash where that start cannot be had)."""
+    from properties import PropertyRangeError
+
+    try:
+        near = fluid.state_tp(T, p)
+    except (PropertyRangeError, ValueError):
+        return fluid.state_ph(p, h)
+    return fluid.state_ph(p, h, guess=(near.T, near.density))
+
+
 def _limit_message(key, mode, target, achieved, res, profile, unit):
     """Why a sizing target lies beyond what the streams can use, in words."""
     k = profile.min_approach_index
@@ -426,6 +438,10 @@ def _steps_on_estimates(section, flow_of, target, guess, lowest_duty, Q_hi, tol)
         if prof.min_approach <= TOUCH_APPROACH:
             return None
         x0, g0 = duty, m * prof.ua() - target
+        if slope is not None and slope > 0 and abs(g0 / slope) <= 0.01 * tol:
+            # The last slope puts the root within a hundredth of tol (a slope off by half would
+            # still put it within tol): no model is needed to know this march is the answer.
+            return duty, RootResults(duty, step, step, 0, method="newton-on-estimates")
         model = section.estimator(duty)
         if model is None:
             return None
@@ -1146,9 +1162,9 @@ class SimpleLindeHampson(Liquefier):
         duty, prof, report, y, eps, eps_crit, m = self._solve_cold_end(rec, hot_in, liquid, vapour, xtol, maxiter)
 
         # The pressures the march ends at: the typed-in drops, or a geometry's friction.
-        hp_out = fl.state_ph(float(prof.hot_p[0]), hot_in.h - duty)
+        hp_out = _state_at_end(fl, float(prof.hot_p[0]), hot_in.h - duty, float(prof.hot_T[0]))
         valve_out = self.valve.run(fl, hp_out)
-        ret = fl.state_ph(float(prof.cold_p[-1]), vapour.h + duty / (1.0 - y))
+        ret = _state_at_end(fl, float(prof.cold_p[-1]), vapour.h + duty / (1.0 - y), float(prof.cold_T[-1]))
         if rec.geometry is not None:
             self.mixer = MakeupMixer(ret.p, sc.ambient_temperature, sc.low_pressure)
         makeup, comp, hp_in, after_duty, streams, losses = self._warm_end(ret, y)

@@ -168,16 +168,20 @@ def throttle(fluid, inlet, p_out):
     return fluid.state_ph(p_out, inlet.h)
 
 
-def mix(fluid, p, flows_and_enthalpies):
+def mix(fluid, p, flows_and_enthalpies, near=None):
     """Adiabatic mixing of streams at pressure ``p`` [Pa].
 
     Parameters
     ----------
     flows_and_enthalpies : sequence of (float, float)
         Mass flow (any consistent basis) and specific enthalpy [J/kg] of each stream.
+    near : properties.State, optional
+        A state close to the mixture (the largest inflow) that starts the solve.
     """
     total = sum(m for m, _ in flows_and_enthalpies)
     h = sum(m * h for m, h in flows_and_enthalpies) / total
+    if near is not None and near.quality is None:
+        return fluid.state_ph(p, h, guess=(near.T, near.density))
     return fluid.state_ph(p, h)
 
 
@@ -249,8 +253,9 @@ def _ua_per_flow(duty, approach):
     if np.any(approach <= 0):
         return math.inf
     a, b = approach[:-1], approach[1:]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        lmtd = np.where(np.abs(a - b) <= 1e-9 * np.abs(b), 0.5 * (a + b), (a - b) / np.log(a / b))
+    log = np.log(a / b)
+    close = np.abs(a - b) <= 1e-9 * b  # equal ends: the arithmetic mean (and no 0 / 0)
+    lmtd = np.where(close, 0.5 * (a + b), (a - b) / np.where(close, 1.0, log))
     return float(np.sum(np.diff(duty) / lmtd))
 
 

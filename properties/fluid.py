@@ -36,6 +36,8 @@ _PHASES = {
 _CRITICAL_PRESSURE_BAND = 1e-9
 # How far above the critical pressure (relative) such a flash is done instead [-].
 CRITICAL_NUDGE = 1e-6
+# States kept by Fluid.state_tp for a repeated (T, p).
+_TP_CACHE = 4096
 
 
 def _is_number(x):
@@ -78,6 +80,7 @@ class Fluid:
         self._has_melting_line = st.has_melting_line()
         self._max_inversion = None
         self._sat_cache = {}
+        self._tp_cache = {}  # (T, p) -> State: a design point asks for the same few many times
         self._marcher = None
 
     def __repr__(self):
@@ -172,12 +175,22 @@ class Fluid:
     # -- states -----------------------------------------------------------------------
 
     def state_tp(self, T, p):
-        """State at temperature ``T`` [K] and pressure ``p`` [Pa] (single phase)."""
+        """State at temperature ``T`` [K] and pressure ``p`` [Pa] (single phase).
+
+        States are immutable; the last few thousand asked for are kept and given again."""
+        key = (T, p)
+        found = self._tp_cache.get(key)
+        if found is not None:
+            return found
         asked = f"T = {_fmt_T(T)}, p = {_fmt_p(p)}"
         self._check_p(p, asked)
         self._check_T(T, p, asked)
         self._update(CP.PT_INPUTS, p, T, asked)
-        return self._snapshot(p)
+        found = self._snapshot(p)
+        if len(self._tp_cache) >= _TP_CACHE:
+            self._tp_cache.clear()
+        self._tp_cache[key] = found
+        return found
 
     def _flash_pressure(self, p, asked):
         """The pressure a (p, h) or (p, s) flash is done at: ``p``, or, within 1e-9 of the critical
@@ -189,8 +202,14 @@ class Fluid:
             return self.p_critical * (1.0 + CRITICAL_NUDGE)
         return p
 
-    def state_ph(self, p, h):
-        """State at pressure ``p`` [Pa] and specific enthalpy ``h`` [J/kg]."""
+    def state_ph(self, p, h, guess=None):
+        """State at pressure ``p`` [Pa] and specific enthalpy ``h`` [J/kg].
+
+        ``guess`` is (T [K], density [kg/m3]) of a nearby state: the state is then solved by
+        Newton's method from it (:meth:`properties.march.PhMarch.solve`, the HEOS answer to
+        1e-6 K), with the flash as the fall-back."""
+        if guess is not None and all(_is_number(g) and g > 0 for g in guess):
+            return self._march.solve(p, h, (float(guess[0]), float(guess[1]) / self.molar_mass))
         asked = f"p = {_fmt_p(p)}, h = {h / 1e3:.6g} kJ/kg"
         self._update(CP.HmassP_INPUTS, h, self._flash_pressure(p, asked), asked)
         self._check_result(asked)
@@ -445,7 +464,8 @@ class Fluid:
 
         Positive where an adiabatic throttle cools the fluid.
         """
-        self.state_tp(T, p)
+        self.state_tp(T, p)  # the checks (its answer may come from the cache: update here)
+        self._update(CP.PT_INPUTS, p, T, f"T = {_fmt_T(T)}, p = {_fmt_p(p)}")
         return self._state.first_partial_deriv(CP.iT, CP.iP, CP.iHmass)
 
     def _jt_or_nan(self, T, p):

@@ -225,8 +225,9 @@ class _MixedHydrogen:
             phase, quality = (a.phase if a.quality is None else b.phase), None
         return OrthoParaState(T, a.p, a.h + w * (b.h - a.h), a.s + w * (b.s - a.s), 1.0 / v, x, phase, quality)
 
-    def state_ph(self, p, h):
-        """State at ``p`` [Pa] and ``h`` [J/kg]: one-phase, bridged band or two-phase."""
+    def state_ph(self, p, h, guess=None):
+        """State at ``p`` [Pa] and ``h`` [J/kg]: one-phase, bridged band or two-phase
+        (``guess`` is accepted for the interface of :meth:`properties.Fluid.state_ph`)."""
         return self._solve(p, h, "h")
 
     def state_ps(self, p, s, guess=None):

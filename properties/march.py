@@ -41,6 +41,20 @@ def _extrapolated(last, h):
     return last[-1][1:] if last else None
 
 
+def _taylor(slopes, p, h):
+    """A (T, D) start for the state at (p, h) from the last state's value and slopes (dT/dp,
+    dT/dh, dD/dp, dD/dh), with the curvature in h of the change of slope since the state before
+    it where there is one; the last state's own (T, D) where that would not be positive."""
+    before, (p1, h1, T1, D1, Tp, Th, Dp, Dh) = slopes
+    dh, dp = h - h1, p - p1
+    T, D = T1 + Tp * dp + Th * dh, D1 + Dp * dp + Dh * dh
+    if before is not None and before[1] != h1:
+        w = 0.5 * dh * dh / (h1 - before[1])
+        T += w * (Th - before[5])
+        D += w * (Dh - before[7])
+    return (T, D) if T > 0 and D > 0 else (T1, D1)
+
+
 class Marched(NamedTuple):
     """States of a march as arrays (index as given), with the local sensitivities a caller
     needs to estimate nearby states without marching again.
@@ -281,20 +295,40 @@ class PhMarch:
         T, rho, q = np.empty(n), np.empty(n), np.full(n, np.nan)
         dT_dp, dT_dh, drho_dp, drho_dh = np.zeros(n), np.zeros(n), np.zeros(n), np.zeros(n)
         M = self.M
-        last = []
+        done = np.zeros(n, dtype=bool)
+        if guesses is not None:
+            # Every state has its own start: Newton's steps for all at once, one property
+            # update a state a pass; what they do not settle is solved one by one below.
+            done, T_b, D_b, jac = self._together(np.asarray(pressures, dtype=float),
+                                                 np.asarray(enthalpies, dtype=float),
+                                                 np.asarray(guesses[0], dtype=float), np.asarray(guesses[1], dtype=float) / M)
+            dp_dT, dp_dD, dh_dT, dh_dD = jac
+            det = dp_dT * dh_dD - dp_dD * dh_dT
+            with np.errstate(divide="ignore", invalid="ignore"):
+                T[done], rho[done] = T_b[done], D_b[done] * M
+                dT_dp[done], dT_dh[done] = (dh_dD / det)[done], (-dp_dD / det)[done]
+                drho_dp[done], drho_dh[done] = (-dh_dT / det * M)[done], (dp_dT / det * M)[done]
+            self.newton_states += int(done.sum())
+            if done.all():
+                return Marched(T, rho, dT_dp, dT_dh, drho_dp, drho_dh, q)
+        last, slopes = [], None
         for k in range(n):
+            if done[k]:
+                continue
             p, h = float(pressures[k]), float(enthalpies[k])
             if guesses is not None:
                 guess = (float(guesses[0][k]), float(guesses[1][k]) / M)
             elif k == 0 and first is not None:
                 guess = (float(first[0]), float(first[1]) / M)
+            elif slopes is not None:
+                guess = _taylor(slopes, p, h)
             else:
                 guess = _extrapolated(last, h)
             Tk, Dk, qk, jac = self.solve(p, h, guess, full="sensitivities")
             T[k], rho[k] = Tk, Dk * M
             if qk is not None:
                 q[k] = qk
-                last = []
+                last, slopes = [], None
                 continue
             last = (last + [(h, Tk, Dk)])[-2:]
             if jac is not None:
@@ -302,7 +336,95 @@ class PhMarch:
                 det = dp_dT * dh_dD - dp_dD * dh_dT
                 dT_dp[k], dT_dh[k] = dh_dD / det, -dp_dD / det
                 drho_dp[k], drho_dh[k] = -dh_dT / det * M, dp_dT / det * M
+                # The next start: this state's own slopes, curved as they changed since the last.
+                here = (p, h, Tk, Dk, dT_dp[k], dT_dh[k], drho_dp[k] / M, drho_dh[k] / M)
+                slopes = (slopes[1] if slopes is not None else None, here)
+            else:
+                slopes = None
         return Marched(T, rho, dT_dp, dT_dh, drho_dp, drho_dh, q)
+
+    def _together(self, p, h, T, D):
+        """Newton's method on (T, D) for many one-phase states at once from their own starts
+        (``T`` [K], ``D`` [mol/m3]): the steps, damping and tests of :meth:`_newton` on arrays,
+        a density-temperature update and its partial derivatives a state a pass.  Returns
+        (settled mask, T, D, Jacobian rows (dp/dT, dp/dD, dh/dT, dh/dD)); a state is left
+        unsettled (for :meth:`solve`) where it is two-phase or might be, its start is on the
+        other side of the saturation curve, a step fails, or it lands outside the range."""
+        fl, st = self.fluid, self.state
+        n = len(h)
+        active = (p > 0.0) & (p <= fl.p_max) & (np.abs(p / fl.p_critical - 1.0) >= 1e-9) & np.isfinite(h)
+        active &= (T > 0) & (D > 0)
+        side = [0.0] * n  # -1 liquid (T must stay below the bubble point), +1 vapour, 0 neither
+        limit = [0.0] * n
+        pl, hl, Tl, Dl = p.tolist(), h.tolist(), T.tolist(), D.tolist()
+        act = active.tolist()
+        p_lo, p_hi = fl.p_triple, fl.p_critical * (1 - 1e-9)
+        for k in range(n):
+            if not (act[k] and p_lo < pl[k] < p_hi):
+                continue
+            T_b, T_d, h_l, h_v, _, _, _, _ = self.bounds(pl[k])
+            if h_l <= hl[k] <= h_v or abs(T_d - T_b) > 1e-9 * T_b:
+                act[k] = False
+            elif hl[k] < h_l:
+                side[k], limit[k] = -1.0, T_b
+                act[k] = Tl[k] < T_b
+            else:
+                side[k], limit[k] = 1.0, T_d
+                act[k] = Tl[k] > T_d
+        done = [False] * n
+        f_p, f_h = [0.0] * n, [0.0] * n
+        j0, j1, j2, j3 = [0.0] * n, [0.0] * n, [0.0] * n, [0.0] * n
+        iP, iT, iD, iH, DT = CP.iP, CP.iT, CP.iDmolar, CP.iHmass, CP.DmolarT_INPUTS
+        deriv = st.first_partial_deriv
+        for _ in range(6):
+            todo = [k for k in range(n) if act[k] and not done[k]]
+            if not todo:
+                break
+            for k in todo:
+                try:
+                    st.update(DT, Dl[k], Tl[k])
+                except ValueError:
+                    act[k] = False
+                    continue
+                f_p[k] = st.p() - pl[k]
+                f_h[k] = st.hmass() - hl[k]
+                j0[k], j1[k] = deriv(iP, iT, iD), deriv(iP, iD, iT)
+                j2[k], j3[k] = deriv(iH, iT, iD), deriv(iH, iD, iT)
+            for k in todo:
+                if not act[k]:
+                    continue
+                fp, fh = f_p[k], f_h[k]
+                if abs(fp) <= _P_RTOL * pl[k] and abs(fh) <= _H_ATOL:
+                    done[k] = True
+                    continue
+                a, b, c, d = j0[k], j1[k], j2[k], j3[k]
+                det = a * d - b * c
+                if det == 0.0 or not math.isfinite(det):
+                    act[k] = False
+                    continue
+                dT = (-fp * d + fh * b) / det
+                dD = (-a * fh + c * fp) / det
+                Tk, Dk = Tl[k], Dl[k]
+                scale = 1.0
+                if abs(dT) > 0.2 * Tk:
+                    scale = 0.2 * Tk / abs(dT)
+                if dD < 0 and -dD > 0.5 * Dk:
+                    scale = min(scale, 0.5 * Dk / -dD)
+                Tl[k], Dl[k] = Tk + scale * dT, Dk + scale * dD
+                # A full step this small leaves the next far below 1e-6 K: taken without evaluating.
+                if scale == 1.0 and abs(dT) < 1e-4 and abs(dD) < 1e-7 * Dk:
+                    done[k] = True
+        T, D = np.array(Tl), np.array(Dl)
+        jac = np.array([j0, j1, j2, j3])
+        active, done = np.array(act, dtype=bool), np.array(done, dtype=bool)
+        side, limit = np.array(side), np.array(limit)
+        done &= active
+        wrong = ((side < 0) & (T > limit)) | ((side > 0) & (T < limit)) | (T < fl.T_min) | (T > fl.T_max)
+        done &= ~wrong
+        for k in np.flatnonzero(done & (T < 2.0 * fl.T_triple)):
+            if self._below_melting(float(T[k]), float(p[k])):
+                done[k] = False
+        return done, T, D, jac
 
     def temperatures(self, pressures, enthalpies, first=None):
         """Temperatures [K] of the states in order (:meth:`march_sensitivities`), started where

@@ -540,3 +540,16 @@ def test_transport_properties_of_nitrogen_and_helium():
     assert cp == pytest.approx(1041.0, rel=0.005) and rho == pytest.approx(1.123, rel=0.005)
     mu, k, _, _, _ = get_fluid("helium").transport(300.0, 1e5)
     assert mu == pytest.approx(19.9e-6, rel=0.01) and k == pytest.approx(0.155, rel=0.02)
+
+
+def test_a_repeated_state_comes_from_the_cache_and_changes_nothing():
+    # Fluid.state_tp keeps the states asked for; the Joule-Thomson coefficient, which reads the
+    # equation of state's own object, is still that of the (T, p) asked after a cached answer.
+    from properties.fluid import Fluid
+
+    n2 = Fluid("nitrogen")
+    first = n2.state_tp(150.0, 50e5)
+    fresh_mu = Fluid("nitrogen").jt_coefficient(150.0, 50e5)
+    n2.state_tp(300.0, 1e5)
+    assert n2.state_tp(150.0, 50e5) is first
+    assert n2.jt_coefficient(150.0, 50e5) == fresh_mu
