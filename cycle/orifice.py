@@ -97,8 +97,9 @@ class ValveSizing:
 
 
 def isentropic_state(fluid, p, s, near=None):
-    """(h [J/kg], density [kg/m3]) at ``p`` [Pa] and entropy ``s`` [J/(kg K)] (``near``: (T [K],
-    density [kg/m3]) of a state on the same isentrope, which starts a one-phase solve).
+    """(h [J/kg], density [kg/m3], T [K], one-phase) at ``p`` [Pa] and entropy ``s`` [J/(kg K)]
+    (``near``: (T [K], density [kg/m3]) of a state on the same isentrope, which starts a
+    one-phase solve).
 
     Between the triple-point and the critical pressure the saturation states at ``p`` are taken
     first (cheap: CoolProp's saturation curves); where ``s`` lies between them the state is their
@@ -117,23 +118,31 @@ def isentropic_state(fluid, p, s, near=None):
         if liquid is not None and liquid.s <= s <= vapour.s:
             x = (s - liquid.s) / (vapour.s - liquid.s) if vapour.s > liquid.s else 0.0
             volume = (1.0 - x) / liquid.density + x / vapour.density
-            return liquid.h + x * (vapour.h - liquid.h), 1.0 / volume
+            return liquid.h + x * (vapour.h - liquid.h), 1.0 / volume, liquid.T, False
     state = fluid.state_ps(p, s, guess=near)
-    return state.h, state.density
+    return state.h, state.density, state.T, state.quality is None
 
 
-def hem_mass_flux(fluid, inlet, p):
+def hem_mass_flux(fluid, inlet, p, starts=None):
     """HEM mass flux [kg/(m2 s)] through a throat at ``p`` [Pa] after an isentropic expansion
     from ``inlet`` (a :class:`properties.State`): rho(p, s0) sqrt(2 (h0 - h(p, s0))).
+
+    ``starts`` (a dict, pressure -> (T, density)) collects the one-phase states found along the
+    isentrope; the nearest in pressure starts the next solve (the inlet where it is empty).
 
     Raises :class:`properties.PropertyRangeError` where no state can be had at ``p`` nor at the
     pressures a hair away (:data:`PRESSURE_NUDGES`).
     """
     from properties import PropertyRangeError
 
+    near = (inlet.T, inlet.density)
+    if starts:
+        near = starts[min(starts, key=lambda q: abs(math.log(q / p)))]
     for nudge in PRESSURE_NUDGES:
         try:
-            h, density = isentropic_state(fluid, p * (1.0 + nudge), inlet.s, near=(inlet.T, inlet.density))
+            h, density, T, one_phase = isentropic_state(fluid, p * (1.0 + nudge), inlet.s, near=near)
+            if one_phase and starts is not None:
+                starts[p * (1.0 + nudge)] = (T, density)
             break
         except PropertyRangeError:
             if nudge == PRESSURE_NUDGES[-1]:
@@ -229,8 +238,10 @@ def _largest_flux(fluid, inlet, p_out):
     lo, hi = math.log(p_out), math.log(p0)
     where = f"the valve's isentropic expansion from {p0 / 1e5:g} bar to {p_out / 1e5:g} bar"
 
+    starts = {}  # one-phase states along the isentrope: each solve starts from the nearest
+
     def flux(x):
-        return hem_mass_flux(fluid, inlet, p_out if x == lo else math.exp(x))
+        return hem_mass_flux(fluid, inlet, p_out if x == lo else math.exp(x), starts)
 
     xs, Gs = [], []
     for k in range(1, SCAN_POINTS + 1):

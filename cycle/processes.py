@@ -335,21 +335,36 @@ def counterflow_estimator(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_ou
     if hot_ref is None or cold_ref is None:
         return None
     P, H, m = hot_ref
-    # The hot side (cold end first) is linear in the duty: T = a + b Q.
-    a = (m.T + m.dT_dh * (hot_in.h - H) + m.dT_dp * (p_hot[-2::-1] - P))[::-1]
-    b = (-m.dT_dh * (1.0 - frac[-2::-1]) / hot_flow)[::-1]
     Pc, Hc, mc = cold_ref
-    hot_T = np.empty(zones + 1)
-    hot_T[-1] = hot_in.T
-    cold_T = np.empty(zones + 1)
+    # Both sides are linear in the duty: the hot side (cold end first) T = a + b Q, the cold
+    # side T = c + e Q / cold_flow (+ the change of its inlet), so the approach at every zone
+    # boundary is C0 + C1 Q + C2 Q / cold_flow.
+    n = zones + 1
+    C0, C1, C2 = np.zeros(n), np.zeros(n), np.zeros(n)
+    C0[:-1] = (m.T + m.dT_dh * (hot_in.h - H) + m.dT_dp * (p_hot[-2::-1] - P))[::-1]
+    C1[:-1] = (-m.dT_dh * (1.0 - frac[-2::-1]) / hot_flow)[::-1]
+    C0[-1] = hot_in.T
+    ref_in, ref_p_out = cold_in, cold_p_out
+    C0_cold = C0.copy()
+    C0_cold[0] -= cold_in.T
+    C0_cold[1:] -= mc.T + mc.dT_dh * (cold_in.h - Hc) + mc.dT_dp * (p_cold[1:] - Pc)
+    C2[1:] = -mc.dT_dh * frac[1:]
+    step = 1.0 / zones
 
     def estimate(Q, cold_in, cold_p_out, cold_flow):
-        hot_T[:-1] = a + b * Q
-        cold_T[0] = cold_in.T
-        cold_T[1:] = (mc.T + mc.dT_dh * (cold_in.h + Q * frac[1:] / cold_flow - Hc)
-                      + mc.dT_dp * (cold_in.p + frac[1:] * (cold_p_out - cold_in.p) - Pc))
-        approach = hot_T - cold_T
-        return float(np.min(approach)), _ua_per_flow(Q * frac, approach)
+        if cold_in is ref_in and cold_p_out == ref_p_out:
+            approach = C0_cold + C1 * Q + C2 * (Q / cold_flow)
+        else:  # the cold inlet moved: its own change, linearly
+            approach = C0 + C1 * Q + C2 * (Q / cold_flow)
+            approach[0] -= cold_in.T
+            approach[1:] -= (mc.T + mc.dT_dh * (cold_in.h - Hc)
+                             + mc.dT_dp * (cold_in.p + frac[1:] * (cold_p_out - cold_in.p) - Pc))
+        a, b = approach[:-1], approach[1:]
+        if not (a.min() > 0 and approach[-1] > 0):
+            return float(approach.min()), math.inf
+        close = np.abs(a - b) <= 1e-9 * b
+        lmtd = np.where(close, 0.5 * (a + b), (a - b) / np.where(close, 1.0, np.log(a / b)))
+        return float(approach.min()), Q * step * float(np.sum(1.0 / lmtd))
 
     return estimate
 
