@@ -311,11 +311,15 @@ class PhMarch:
             self.newton_states += int(done.sum())
             if done.all():
                 return Marched(T, rho, dT_dp, dT_dh, drho_dp, drho_dh, q)
+        fl = self.fluid
+        p_lo, p_hi, p_max, p_c = fl.p_triple, fl.p_critical * (1 - 1e-9), fl.p_max, fl.p_critical
+        pl = np.asarray(pressures, dtype=float).tolist()
+        hl = np.asarray(enthalpies, dtype=float).tolist()
         last, slopes = [], None
         for k in range(n):
             if done[k]:
                 continue
-            p, h = float(pressures[k]), float(enthalpies[k])
+            p, h = pl[k], hl[k]
             if guesses is not None:
                 guess = (float(guesses[0][k]), float(guesses[1][k]) / M)
             elif k == 0 and first is not None:
@@ -324,7 +328,31 @@ class PhMarch:
                 guess = _taylor(slopes, p, h)
             else:
                 guess = _extrapolated(last, h)
-            Tk, Dk, qk, jac = self.solve(p, h, guess, full="sensitivities")
+            found = None
+            # The common case inline (one phase, a start on its side of the saturation curve);
+            # anything else as solve() does it.
+            if guess is not None and 0.0 < p <= p_max and abs(p / p_c - 1.0) >= 1e-9 and h == h:
+                side = limit = 0.0
+                if p_lo < p < p_hi:
+                    T_b, T_d, h_l, h_v, _, _, D_l, D_v = self.bounds(p)
+                    if h_l <= h <= h_v or abs(T_d - T_b) > 1e-9 * T_b:
+                        guess = None
+                    elif h < h_l:
+                        side, limit = -1.0, T_b
+                        if guess[0] >= T_b:
+                            guess = (T_b * (1 - 1e-4), D_l)
+                    else:
+                        side, limit = 1.0, T_d
+                        if guess[0] <= T_d:
+                            guess = (T_d * (1 + 1e-4), D_v)
+                if guess is not None:
+                    found = self._settle(p, h, guess[0], guess[1], side, limit)
+            if found is not None:
+                Tk, Dk, a, b, c, d = found
+                self.newton_states += 1
+                qk, jac = None, (a, b, c, d)
+            else:
+                Tk, Dk, qk, jac = self.solve(p, h, guess, full="sensitivities")
             T[k], rho[k] = Tk, Dk * M
             if qk is not None:
                 q[k] = qk
@@ -334,14 +362,54 @@ class PhMarch:
             if jac is not None:
                 dp_dT, dp_dD, dh_dT, dh_dD = jac
                 det = dp_dT * dh_dD - dp_dD * dh_dT
-                dT_dp[k], dT_dh[k] = dh_dD / det, -dp_dD / det
-                drho_dp[k], drho_dh[k] = -dh_dT / det * M, dp_dT / det * M
+                sT_p, sT_h, sD_p, sD_h = dh_dD / det, -dp_dD / det, -dh_dT / det, dp_dT / det
+                dT_dp[k], dT_dh[k], drho_dp[k], drho_dh[k] = sT_p, sT_h, sD_p * M, sD_h * M
                 # The next start: this state's own slopes, curved as they changed since the last.
-                here = (p, h, Tk, Dk, dT_dp[k], dT_dh[k], drho_dp[k] / M, drho_dh[k] / M)
+                here = (p, h, Tk, Dk, sT_p, sT_h, sD_p, sD_h)
                 slopes = (slopes[1] if slopes is not None else None, here)
             else:
                 slopes = None
         return Marched(T, rho, dT_dp, dT_dh, drho_dp, drho_dh, q)
+
+    def _settle(self, p, h, T, D, side, limit):
+        """One one-phase state by Newton's method from (T [K], D [mol/m3]), as :meth:`_newton`
+        with its final step, inline for the march: (T, D, dp/dT, dp/dD, dh/dT, dh/dD) with the
+        partial derivatives of the last state evaluated, or None where it does not settle, lands
+        on the wrong side of the saturation curve (``side`` -1: below ``limit``, the bubble
+        point; +1: above it, the dew point; 0: no curve) or outside the range."""
+        st, fl = self.state, self.fluid
+        update, deriv = st.update, st.first_partial_deriv
+        DT, iP, iT, iD, iH = CP.DmolarT_INPUTS, CP.iP, CP.iT, CP.iDmolar, CP.iHmass
+        for _ in range(_MAX_STEPS):
+            try:
+                update(DT, D, T)
+            except ValueError:
+                return None
+            f_p, f_h = st.p() - p, st.hmass() - h
+            a, b, c, d = deriv(iP, iT, iD), deriv(iP, iD, iT), deriv(iH, iT, iD), deriv(iH, iD, iT)
+            if abs(f_p) <= _P_RTOL * p and abs(f_h) <= _H_ATOL:
+                break
+            det = a * d - b * c
+            if det == 0.0 or not math.isfinite(det):
+                return None
+            dT = (-f_p * d + f_h * b) / det
+            dD = (-a * f_h + c * f_p) / det
+            scale = 1.0
+            if abs(dT) > 0.2 * T:
+                scale = 0.2 * T / abs(dT)
+            if dD < 0 and -dD > 0.5 * D:
+                scale = min(scale, 0.5 * D / -dD)
+            T += scale * dT
+            D += scale * dD
+            if scale == 1.0 and abs(dT) < 1e-4 and abs(dD) < 1e-7 * D:
+                break
+        else:
+            return None
+        if (side < 0 and T > limit) or (side > 0 and T < limit) or not fl.T_min <= T <= fl.T_max:
+            return None
+        if T < 2.0 * fl.T_triple and self._below_melting(T, p):
+            return None
+        return T, D, a, b, c, d
 
     def _together(self, p, h, T, D):
         """Newton's method on (T, D) for many one-phase states at once from their own starts
