@@ -504,7 +504,9 @@ class PhMarch:
         guesses = self._estimate(p, h) if self._memory is not None else None
         marched = self.march_sensitivities(p, h, guesses, None if guesses is not None else first)
         if self._memory is not None:
-            self._memory.append((p.copy(), h.copy(), marched))
+            n = len(p)
+            ends = (float(p[0]), float(p[n // 2]), float(p[-1])) if n else ()
+            self._memory.append((p.copy(), h.copy(), marched, ends))
             del self._memory[:-_REMEMBERED]
         return marched.T
 
@@ -519,12 +521,16 @@ class PhMarch:
 
     def _nearest(self, p, h):
         best, gap = None, math.inf
-        for P, H, m in self._memory:
-            if P.shape != p.shape or not all(abs(P[k] - p[k]) <= 1e-3 * abs(p[k]) for k in (0, len(p) // 2, -1)):
+        n = len(p)
+        ends = (float(p[0]), float(p[n // 2]), float(p[-1])) if n else ()
+        for P, H, m, at in reversed(self._memory):  # the newest first: usually the one
+            if len(P) != n or any(abs(a - b) > 1e-3 * abs(b) for a, b in zip(at, ends)):
                 continue  # (only a start is chosen: three pressures are enough to tell)
-            d = float(np.max(np.abs(H - h)))
+            d = float(np.abs(H - h).max())
             if d < gap:
                 best, gap = (P, H, m), d
+                if d == 0.0:
+                    break
         return best
 
     def _estimate(self, p, h):
