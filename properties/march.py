@@ -372,49 +372,29 @@ class PhMarch:
         return Marched(T, rho, dT_dp, dT_dh, drho_dp, drho_dh, q)
 
     def _settle(self, p, h, T, D, side, limit):
-        """One one-phase state by Newton's method from (T [K], D [mol/m3]), as :meth:`_newton`
-        with its final step, inline for the march: (T, D, dp/dT, dp/dD, dh/dT, dh/dD) with the
-        partial derivatives of the last state evaluated, or None where it does not settle, lands
-        on the wrong side of the saturation curve (``side`` -1: below ``limit``, the bubble
-        point; +1: above it, the dew point; 0: no curve) or outside the range."""
-        st, fl = self.state, self.fluid
-        update, deriv = st.update, st.first_partial_deriv
-        DT, iP, iT, iD, iH = CP.DmolarT_INPUTS, CP.iP, CP.iT, CP.iDmolar, CP.iHmass
-        for _ in range(_MAX_STEPS):
-            try:
-                update(DT, D, T)
-            except ValueError:
-                return None
-            f_p, f_h = st.p() - p, st.hmass() - h
-            a, b, c, d = deriv(iP, iT, iD), deriv(iP, iD, iT), deriv(iH, iT, iD), deriv(iH, iD, iT)
-            if abs(f_p) <= _P_RTOL * p and abs(f_h) <= _H_ATOL:
-                break
-            det = a * d - b * c
-            if det == 0.0 or not math.isfinite(det):
-                return None
-            dT = (-f_p * d + f_h * b) / det
-            dD = (-a * f_h + c * f_p) / det
-            scale = 1.0
-            if abs(dT) > 0.2 * T:
-                scale = 0.2 * T / abs(dT)
-            if dD < 0 and -dD > 0.5 * D:
-                scale = min(scale, 0.5 * D / -dD)
-            T += scale * dT
-            D += scale * dD
-            if scale == 1.0 and abs(dT) < 1e-4 and abs(dD) < 1e-7 * D:
-                break
-        else:
+        """One one-phase state by Newton's method (:meth:`_newton`, with its final step) from
+        (T [K], D [mol/m3]), without :meth:`solve`'s checks of where the state may lie (the
+        march has made them): (T, D, dp/dT, dp/dD, dh/dT, dh/dD) with the partial derivatives of
+        the last state evaluated, or None where it does not settle, lands on the wrong side of
+        the saturation curve (``side`` -1: below ``limit``, the bubble point; +1: above it, the
+        dew point; 0: no curve) or outside the range."""
+        jacobian = []
+        found = self._newton(p, h, T, D, final_step=True, jacobian=jacobian)
+        if found is None:
             return None
+        T, D = found
+        fl = self.fluid
         if (side < 0 and T > limit) or (side > 0 and T < limit) or not fl.T_min <= T <= fl.T_max:
             return None
         if T < 2.0 * fl.T_triple and self._below_melting(T, p):
             return None
-        return T, D, a, b, c, d
+        return (T, D) + (tuple(jacobian) if jacobian else self._jacobian())
 
     def _together(self, p, h, T, D):
         """Newton's method on (T, D) for many one-phase states at once from their own starts
-        (``T`` [K], ``D`` [mol/m3]): the steps, damping and tests of :meth:`_newton` on arrays,
-        a density-temperature update and its partial derivatives a state a pass.  Returns
+        (``T`` [K], ``D`` [mol/m3]): the steps, damping and tests of :meth:`_newton`, taken for
+        every state in turn in each pass (a density-temperature update and its partial
+        derivatives a state a pass) instead of state after state to the end.  Returns
         (settled mask, T, D, Jacobian rows (dp/dT, dp/dD, dh/dT, dh/dD)); a state is left
         unsettled (for :meth:`solve`) where it is two-phase or might be, its start is on the
         other side of the saturation curve, a step fails, or it lands outside the range."""
