@@ -328,7 +328,9 @@ def solve_lines(result):
         label = name.replace("_", " ")
         unit = "" if rep.residual_unit == "-" else f" {rep.residual_unit}"
         if rep.status == "met" and rep.converged:
-            lines.append(f"{label}: converged in {rep.iterations} iterations ({rep.function_calls} evaluations); "
+            how = {"newton-on-estimates": ", Newton's method on the marches", "brentq": ", Brent's method"}.get(
+                rep.method, "")
+            lines.append(f"{label}: converged in {rep.iterations} iterations ({rep.function_calls} evaluations{how}); "
                          f"target {rep.target:.6g}{unit}, residual {number(rep.residual, '{:.1e}')}{unit} "
                          f"(allowed {rep.residual_tolerance:.0e}{unit})")
         elif rep.status == "limit":
