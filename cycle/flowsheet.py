@@ -422,12 +422,14 @@ def _steps_on_estimates(section, flow_of, target, guess, lowest_duty, Q_hi, tol)
     the bracketing solve takes over (the marches made are remembered).
     """
 
+    # The residual on 1/UA, 1/target - 1/UA: it falls to zero where the UA climbs steeply (the
+    # streams closing in), so secant steps from such a guess take fewer evaluations.
     def estimated(duty):
         m = flow_of(duty)
         found = model(duty) if math.isfinite(m) else None
         if found is None or found[0] <= TOUCH_APPROACH:
             return None
-        return m * found[1] - target
+        return 1.0 / target - 1.0 / (m * found[1])
 
     duty, slope = guess, None
     for step in range(1, ESTIMATE_STEPS + 1):
@@ -437,7 +439,7 @@ def _steps_on_estimates(section, flow_of, target, guess, lowest_duty, Q_hi, tol)
         prof = section.profile(duty)  # the march
         if prof.min_approach <= TOUCH_APPROACH:
             return None
-        x0, g0 = duty, m * prof.ua() - target
+        x0, g0 = duty, 1.0 / target - 1.0 / (m * prof.ua())
         if slope is not None and slope > 0 and abs(g0 / slope) <= 0.01 * tol:
             # The last slope puts the root within a hundredth of tol (a slope off by half would
             # still put it within tol): no model is needed to know this march is the answer.
