@@ -348,7 +348,7 @@ def main():
 ## Not done
 
 - **The 50-equivalent goal is reached at its edge, with no margin**: the medians of five rounds
-  in the runs of 2026-12-03 were 49 to 52 (single rounds 43 to 55; 177 before this work), so
+  in the runs of 2026-12-03 were 49 to 52 (single rounds 40 to 55; 177 before this work), so
   whether a run says "yes" depends on this machine's drift of a few per cent. About two thirds
   of a point's time is Python around the property calls: the three marches (the
   first, fresh, takes two Newton passes a state; the second, started 1.6 kJ/kg away, two; the
