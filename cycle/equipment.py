@@ -416,6 +416,25 @@ class Recuperator:
 
         return estimate
 
+    def length_estimator(self, rated, hot_in):
+        """From a rating (a :class:`cycle.tube_exchanger.RatedProfile` of this exchanger), a
+        function ``estimate(duty [J/kg compressed], colds, flow [kg/s]) -> length [m]`` at other
+        duties with no property call (:func:`cycle.tube_exchanger.estimated_length`; None where
+        its model leaves its range); None without a geometry."""
+        if self.geometry is None or rated is None:
+            return None
+        from cycle.tube_exchanger import estimated_length
+
+        geometry = self.geometry
+
+        def estimate(Q, colds, flow):
+            if len(colds) != 1:
+                return None
+            (cold_in, cold_flow), = colds
+            return estimated_length(rated, geometry, hot_in, flow, cold_in, cold_flow * flow, Q * flow)
+
+        return estimate
+
     def max_hot_duty(self, fluid, hot_in, T_floor):
         """Duty that cools the hot stream to ``T_floor`` [K] (or its melting line) [J/kg compressed]."""
         hot_p_out = self.hot_outlet_pressure(hot_in.p)

@@ -165,6 +165,15 @@ class Section:
         found = self.recuperator.estimator(self.fluid, self.hot_in, self.colds_of(duty), duty, self.cold_fluid)
         return None if found is None else (lambda d: found(d, self.colds_of(d)))
 
+    def length_estimator(self, duty):
+        """From the rating at ``duty`` (made first if need be), ``estimate(duty) -> length [m]``
+        at other duties with no property call, or None
+        (:meth:`cycle.equipment.Recuperator.length_estimator`)."""
+        found = self.recuperator.length_estimator(self.profile(duty).rating, self.hot_in)
+        if found is None:
+            return None
+        return lambda d: found(d, self.colds_of(d), self.flow_of(d))
+
     def duty_for_outlet(self, approach, Q_hi):
         """Duty at which the cold streams leave ``approach`` [K] below the hot inlet temperature
         (no march: only the end states).  The first guess of a minimum-approach solve; exact
@@ -571,6 +580,57 @@ def _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter):
 LENGTH_SCAN = (0.05, 0.2, 0.4, 0.6, 0.75, 0.85, 0.92, 0.96, 0.98, 0.99, 0.995, 0.999)
 
 
+def _length_steps(section, needed, target, duty, lowest_duty, Q_hi):
+    """The duty at which a rated exchanger of a fixed flow needs ``target`` metres, by Newton's
+    method on the ratings, as :func:`_steps_on_estimates` does for a UA: after each rating, the
+    root of the length of the linear model built from it (its conductances per metre and
+    friction frozen: :meth:`Section.length_estimator`) by secant steps on 1/length, and the next
+    rating there.  Returns (duty, report, length reached, duty tolerance) once a rating meets the
+    length to a tenth of its tolerance, or None (the bracketing solve takes over)."""
+    allowed = 0.1 * SIZING_TOLERANCE["length"] * target
+    slope = None
+    for step in range(1, ESTIMATE_STEPS + 1):
+        L = needed(duty)
+        if not (math.isfinite(L) and L > 0):
+            return None
+        if abs(L - target) <= allowed and slope is not None:
+            # The duty tolerance that meets the length to a tenth of its own: |dL/dQ| = L^2 |d(1/L)/dQ|.
+            xtol = max(allowed / (target * target * abs(slope)), 4e-16 * Q_hi)
+            return duty, RootResults(duty, step, step, 0, method="newton-on-estimates"), L, xtol
+        model = section.length_estimator(duty)
+        if model is None:
+            return None
+
+        def gap(d):
+            found = model(d)
+            return None if found is None or not found > 0 else 1.0 / found - 1.0 / target
+
+        x0, g0 = duty, 1.0 / L - 1.0 / target
+        if slope is None:
+            x1 = duty + 1e-6 * Q_hi * (1.0 if duty < 0.5 * (lowest_duty + Q_hi) else -1.0)
+            g1 = gap(x1)
+            if g1 is None or g1 == g0:
+                return None
+            slope = (g1 - g0) / (x1 - x0)
+        nxt = None
+        for _ in range(40):
+            x1 = x0 - g0 / slope
+            if not lowest_duty < x1 < Q_hi:  # a step past an end of the range: halfway to it
+                x1 = 0.5 * (x0 + (Q_hi if x1 >= Q_hi else lowest_duty))
+            if abs(x1 - x0) <= 1e-3 * abs(x1 - duty) or abs(x1 - x0) <= 4e-16 * Q_hi:
+                nxt = x1
+                break
+            g1 = gap(x1)
+            if g1 is None or g1 == g0:
+                return None
+            slope = (g1 - g0) / (x1 - x0)
+            x0, g0 = x1, g1
+        if nxt is None or not slope < 0:  # 1/length falls as the duty rises
+            return None
+        duty = nxt
+    return None
+
+
 def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
     """Duty that a tube-in-tube exchanger of the given length passes (a rated exchanger).
 
@@ -606,6 +666,9 @@ def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
         except ValueError:
             d0 = 0.5 * (lowest_duty + Q_hi)
         L0 = needed(d0)
+        found = _length_steps(section, needed, target, d0, lowest_duty, Q_hi) if math.isfinite(L0) else None
+        if found is not None:
+            return found
         if math.isfinite(L0) and L0 > 0:
             def gap(d):  # 1/length needed - 1/length given [1/m]: rises as the duty falls
                 return 1.0 / needed(d) - 1.0 / target

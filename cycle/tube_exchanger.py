@@ -232,10 +232,31 @@ def _new_pressures(lengths, v_hot, v_cold, friction_hot, friction_cold, G, hot_i
     return new_hot, new_cold
 
 
-def _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, passes=40):
+def estimated_length(rated, geometry, hot_in, hot_flow, cold_in, cold_flow, duty):
+    """The length [m] a tube-in-tube exchanger needs to pass ``duty`` [W], estimated with no
+    property call on the linear model of the march of ``rated`` (a :class:`RatedProfile` of the
+    same inlet states): its states' sensitivities, its conductances per metre and friction
+    frozen, the pressures settled as in :func:`rate`.  None where the model leaves its range.
+    What a root finder steps on between ratings."""
+    base = getattr(rated, "base", None)
+    if base is None or base.inlets != (hot_in.p, hot_in.h, cold_in.p, cold_in.h):
+        return None
+    n = len(base.h_hot) - 1
+    q = np.linspace(0.0, duty, n + 1)
+    h_hot = hot_in.h - (duty - q) / hot_flow
+    h_cold = cold_in.h + q / cold_flow
+    G = (hot_flow / geometry.tube_area, cold_flow / geometry.annulus_area)
+    _, _, guesses, lengths = _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, lengths=True)
+    if guesses is None or lengths is None or not np.all(np.isfinite(lengths)):
+        return None
+    return float(np.sum(lengths))
+
+
+def _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, passes=40, lengths=False):
     """Boundary pressures at enthalpies ``h_hot``, ``h_cold`` on the linear model of the march
     ``base``, iterated until they settle (to a tenth of :data:`PRESSURE_RTOL`); and the states'
-    temperatures and densities there, as the next march's starting guesses."""
+    temperatures and densities there, as the next march's starting guesses (with ``lengths``,
+    also the zones' lengths on the model [m])."""
     hot, cold = base.hot, base.cold
     T_h0 = hot.T + hot.dT_dh * (h_hot - base.h_hot)
     r_h0 = hot.density + hot.drho_dh * (h_hot - base.h_hot)
@@ -254,17 +275,18 @@ def _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, passes=40):
         r_c = r_c0 + cold.drho_dp * (p_cold - base.p_cold)
         lmtd = _lmtd(T_h[1:] - T_c[1:], T_h[:-1] - T_c[:-1])
         if np.any(lmtd <= 0) or np.any(r_h <= 0) or np.any(r_c <= 0):
-            return base.new_hot, base.new_cold, None  # the model leaves its range: march from the base's pressures
-        lengths = dq / (base.per_metre * lmtd)
-        new_hot, new_cold = _new_pressures(lengths, 1.0 / r_h, 1.0 / r_c, friction_hot, friction_cold, G, hot_in,
+            # The model leaves its range: march from the base's pressures.
+            return (base.new_hot, base.new_cold, None) + ((None,) if lengths else ())
+        zone_lengths = dq / (base.per_metre * lmtd)
+        new_hot, new_cold = _new_pressures(zone_lengths, 1.0 / r_h, 1.0 / r_c, friction_hot, friction_cold, G, hot_in,
                                            cold_in)
         change = _change(new_hot, p_hot, new_cold, p_cold, hot_in, cold_in)
         p_hot, p_cold = new_hot, new_cold
         if change <= 0.1 * PRESSURE_RTOL:
             break
     if np.min(p_hot) <= 0.05 * hot_in.p or np.min(p_cold) <= 0.05 * cold_in.p:
-        return base.new_hot, base.new_cold, None
-    return p_hot, p_cold, ((T_h, r_h), (T_c, r_c))
+        return (base.new_hot, base.new_cold, None) + ((None,) if lengths else ())
+    return (p_hot, p_cold, ((T_h, r_h), (T_c, r_c))) + ((zone_lengths,) if lengths else ())
 
 
 def _march(fluid, geometry, wall, key, p_hot, p_cold, h_hot, h_cold, q, G, hot_in, cold_in, inlets, guesses):

@@ -224,3 +224,23 @@ def test_the_linear_pressure_model_lands_on_the_fixed_point_of_the_march():
         assert np.max(abs(r.profile.cold_p - ref.p_cold)) <= 1e-7 * cold.p
         assert np.max(abs(r.profile.hot_p - ref.p_hot)) <= 1e-7 * hot.p
         assert r.length == pytest.approx(float(np.sum(ref.lengths)), rel=1e-6)
+
+
+@pytest.mark.parametrize("length, flow", [("20 m", "30 kg/h"), ("30 m", "30 kg/h"), ("12 m", "45 kg/h")])
+def test_newton_on_rating_models_finds_the_duty_brent_finds(length, flow, monkeypatch):
+    # A rated exchanger of fixed flow is solved by Newton's method on the ratings (the root of
+    # the length of the linear model built from each: conductances per metre frozen); without it
+    # (no steps allowed) by the secant, bracket and Brent's method.  Both meet the length to its
+    # tolerance and the yields agree within 1e-7 relative, with fewer ratings.
+    import cycle.flowsheet as flowsheet
+
+    data = bench({"zones": 30, "geometry": dict(copy.deepcopy(GEOMETRY), length=length)},
+                 production={"compressor_flow": flow})
+    newton = solve_scenario(parse_scenario(data))
+    monkeypatch.setattr(flowsheet, "ESTIMATE_STEPS", 0)
+    brent = solve_scenario(parse_scenario(data))
+    assert newton.solve.method == "newton-on-estimates" and newton.solve.converged and brent.solve.converged
+    L = float(length.split()[0])
+    assert abs(newton.summary()["recuperator_length_m"] - L) <= 0.1 * flowsheet.SIZING_TOLERANCE["length"] * L
+    assert newton.liquid_yield == pytest.approx(brent.liquid_yield, rel=1e-7)
+    assert newton.solve.function_calls < brent.solve.function_calls

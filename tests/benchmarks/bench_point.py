@@ -348,7 +348,7 @@ def main():
 ## Not done
 
 - **The 50-equivalent goal is reached at its edge, with no margin**: the medians of five rounds
-  in the runs of 2026-12-03 were 49 to 52 (single rounds 40 to 55; 177 before this work), so
+  in the runs of 2026-12-03 were 49 to 54 (single rounds 40 to 55; 177 before this work), so
   whether a run says "yes" depends on this machine's drift of a few per cent. About two thirds
   of a point's time is Python around the property calls: the three marches (the
   first, fresh, takes two Newton passes a state; the second, started 1.6 kJ/kg away, two; the
@@ -358,10 +358,11 @@ def main():
   1e-6 K, but its model evaluations cost more than the pass they saved), second derivatives of T
   in h for the model (a better root, not good enough to save the third march), a looser final-step
   test in Newton's method (the starts are not close enough for it to count).
-- **A geometry point is not within 3 times a UA point** (about 8 times): it has eight rated
-  profiles of two marches each, and each march takes the transport properties of every zone (a
-  quarter of its time). It gained from the faster marches (61 to 52 ms) but not from the
-  Newton steps, which are for UA sizing only.
+- **A geometry point is not within 3 times a UA point** (about 6 to 7 times): it went from 61 to
+  about 43 ms, with the faster marches and Newton's method on its length (`_length_steps`: five
+  ratings where eight were needed; the model freezes the conductances per metre, so the ratings
+  converge linearly, a factor of about a hundred a rating), but each rating still takes one to
+  three marches, each with the transport properties of every zone (a quarter of its time).
 - **Tabulated properties** (TTSE/bicubic) are left out: the march already gives HEOS answers at a
   fraction of the flash cost, and the tables' error and the crash seen when building them in the
   worker process would need their own measurement across the demos and a sweep before use.
