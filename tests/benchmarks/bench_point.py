@@ -358,8 +358,8 @@ def main():
   1e-6 K, but its model evaluations cost more than the pass they saved), second derivatives of T
   in h for the model (a better root, not good enough to save the third march), a looser final-step
   test in Newton's method (the starts are not close enough for it to count).
-- **A geometry point is not within 3 times a UA point** (about 6 to 7 times): it went from 61 to
-  about 43 ms, with the faster marches and Newton's method on its length (`_length_steps`: five
+- **A geometry point is not within 3 times a UA point** (about 6 to 7 times): it went from 56 to
+  43 ms (measured back to back on 2026-12-03), with the faster marches and Newton's method on its length (`_length_steps`: five
   ratings where eight were needed; the model freezes the conductances per metre, so the ratings
   converge linearly, a factor of about a hundred a rating), but each rating still takes one to
   three marches, each with the transport properties of every zone (a quarter of its time).
