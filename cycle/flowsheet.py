@@ -417,6 +417,27 @@ def _bracket(f, guess, lo, hi, decreasing, step=None):
 ESTIMATE_STEPS = 8
 
 
+def _secant_on_model(residual, duty, value, slope, lowest_duty, Q_hi, floor):
+    """Secant steps on a model's ``residual`` (cheap: no property call) from ``duty``, where it
+    is ``value``, and a first ``slope``, to its root: (root, last slope), or None where the model
+    gives no value.  Far from ``duty`` the next march corrects what the model misses, so the
+    steps need only settle to a thousandth of the distance from it (near it, to ``floor``); a
+    step past an end of the range goes halfway to it."""
+    x0, g0 = duty, value
+    for _ in range(40):
+        x1 = x0 - g0 / slope
+        if not lowest_duty < x1 < Q_hi:
+            x1 = 0.5 * (x0 + (Q_hi if x1 >= Q_hi else lowest_duty))
+        if abs(x1 - x0) <= max(floor, 1e-3 * abs(x1 - duty)):
+            return x1, slope
+        g1 = residual(x1)
+        if g1 is None or g1 == g0:
+            return None
+        slope = (g1 - g0) / (x1 - x0)
+        x0, g0 = x1, g1
+    return None
+
+
 def _steps_on_estimates(section, flow_of, target, guess, lowest_duty, Q_hi, tol):
     """The duty at which the UA meets ``target`` by Newton's method on the march: each real
     march at a duty is followed by the root, near it, of the UA of profiles estimated from that
@@ -462,23 +483,10 @@ def _steps_on_estimates(section, flow_of, target, guess, lowest_duty, Q_hi, tol)
             if g1 is None or g1 == g0:
                 return None
             slope = (g1 - g0) / (x1 - x0)
-        nxt = None
-        for _ in range(40):  # secant steps on the estimate (cheap), from the last slope
-            x1 = x0 - g0 / slope
-            if not lowest_duty < x1 < Q_hi:
-                return None
-            # Far from the root the next march corrects what the estimate misses: the secant
-            # steps need only settle to a thousandth of the step; near it, to a tenth of tol.
-            if abs(x1 - x0) <= max(0.1 * tol, 1e-3 * abs(x1 - duty)):
-                nxt = x1
-                break
-            g1 = estimated(x1)
-            if g1 is None or g1 == g0:
-                return None
-            slope = (g1 - g0) / (x1 - x0)
-            x0, g0 = x1, g1
-        if nxt is None or not slope > 0:
+        found = _secant_on_model(estimated, x0, g0, slope, lowest_duty, Q_hi, 0.1 * tol)
+        if found is None or not found[1] > 0:
             return None
+        nxt, slope = found
         if abs(nxt - duty) <= tol:
             return duty, RootResults(duty, step, step, 0, method="newton-on-estimates")
         duty = nxt
@@ -612,22 +620,10 @@ def _length_steps(section, needed, target, duty, lowest_duty, Q_hi):
             if g1 is None or g1 == g0:
                 return None
             slope = (g1 - g0) / (x1 - x0)
-        nxt = None
-        for _ in range(40):
-            x1 = x0 - g0 / slope
-            if not lowest_duty < x1 < Q_hi:  # a step past an end of the range: halfway to it
-                x1 = 0.5 * (x0 + (Q_hi if x1 >= Q_hi else lowest_duty))
-            if abs(x1 - x0) <= 1e-3 * abs(x1 - duty) or abs(x1 - x0) <= 4e-16 * Q_hi:
-                nxt = x1
-                break
-            g1 = gap(x1)
-            if g1 is None or g1 == g0:
-                return None
-            slope = (g1 - g0) / (x1 - x0)
-            x0, g0 = x1, g1
-        if nxt is None or not slope < 0:  # 1/length falls as the duty rises
+        found = _secant_on_model(gap, x0, g0, slope, lowest_duty, Q_hi, 4e-16 * Q_hi)
+        if found is None or not found[1] < 0:  # 1/length falls as the duty rises
             return None
-        duty = nxt
+        duty, slope = found
     return None
 
 
