@@ -247,16 +247,20 @@ class ExchangerProfile:
         return _ua_per_flow(self.duty, self.approach)
 
 
+def _zone_lmtd(approach):
+    """Each zone's log-mean temperature difference [K] from the ``approach`` [K] (all positive) at
+    the zone boundaries; the arithmetic mean where the two ends are equal (and no 0 / 0)."""
+    a, b = approach[:-1], approach[1:]
+    close = np.abs(a - b) <= 1e-9 * b
+    return np.where(close, 0.5 * (a + b), (a - b) / np.where(close, 1.0, np.log(a / b)))
+
+
 def _ua_per_flow(duty, approach):
     """Sum of zone duty over zone LMTD [W/K per kg/s] of a profile's cumulative ``duty`` [J/kg]
     and ``approach`` [K] at the zone boundaries; infinite where the streams touch or cross."""
     if np.any(approach <= 0):
         return math.inf
-    a, b = approach[:-1], approach[1:]
-    log = np.log(a / b)
-    close = np.abs(a - b) <= 1e-9 * b  # equal ends: the arithmetic mean (and no 0 / 0)
-    lmtd = np.where(close, 0.5 * (a + b), (a - b) / np.where(close, 1.0, log))
-    return float(np.sum(np.diff(duty) / lmtd))
+    return float(np.sum(np.diff(duty) / _zone_lmtd(approach)))
 
 
 def _hot_side(fluid, hot_in, hot_p_out, hot_flow, duty, zones):
@@ -359,12 +363,10 @@ def counterflow_estimator(fluid, hot_in, hot_p_out, hot_flow, cold_in, cold_p_ou
             approach[0] -= cold_in.T
             approach[1:] -= (mc.T + mc.dT_dh * (cold_in.h - Hc)
                              + mc.dT_dp * (cold_in.p + frac[1:] * (cold_p_out - cold_in.p) - Pc))
-        a, b = approach[:-1], approach[1:]
-        if not (a.min() > 0 and approach[-1] > 0):
-            return float(approach.min()), math.inf
-        close = np.abs(a - b) <= 1e-9 * b
-        lmtd = np.where(close, 0.5 * (a + b), (a - b) / np.where(close, 1.0, np.log(a / b)))
-        return float(approach.min()), Q * step * float(np.sum(1.0 / lmtd))
+        least = float(approach.min())
+        if not least > 0:
+            return least, math.inf
+        return least, Q * step * float(np.sum(1.0 / _zone_lmtd(approach)))  # equal-duty zones
 
     return estimate
 

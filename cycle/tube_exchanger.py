@@ -192,11 +192,8 @@ def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zone
     back within :data:`PRESSURE_RTOL` of its inlet pressures.
     """
     n = zones
-    q = np.linspace(0.0, duty, n + 1)  # cumulative from the cold end [W]
-    h_hot = hot_in.h - (duty - q) / hot_flow
-    h_cold = cold_in.h + q / cold_flow
+    q, h_hot, h_cold, G = _zone_grid(geometry, hot_in, hot_flow, cold_in, cold_flow, duty, n)
     inlets = (hot_in.p, hot_in.h, cold_in.p, cold_in.h)
-    G = (hot_flow / geometry.tube_area, cold_flow / geometry.annulus_area)
     base = getattr(start, "base", None)
     guesses = None
     if base is not None and base.inlets == inlets and len(base.h_hot) == n + 1:
@@ -232,6 +229,15 @@ def _new_pressures(lengths, v_hot, v_cold, friction_hot, friction_cold, G, hot_i
     return new_hot, new_cold
 
 
+def _zone_grid(geometry, hot_in, hot_flow, cold_in, cold_flow, duty, zones):
+    """The zone boundaries of a duty [W]: cumulative duty from the cold end [W], both streams'
+    enthalpies [J/kg] there, and the mass fluxes (tubes, annuli) [kg/(m2 s)]."""
+    q = np.linspace(0.0, duty, zones + 1)
+    h_hot = hot_in.h - (duty - q) / hot_flow
+    h_cold = cold_in.h + q / cold_flow
+    return q, h_hot, h_cold, (hot_flow / geometry.tube_area, cold_flow / geometry.annulus_area)
+
+
 def estimated_length(rated, geometry, hot_in, hot_flow, cold_in, cold_flow, duty):
     """The length [m] a tube-in-tube exchanger needs to pass ``duty`` [W], estimated with no
     property call on the linear model of the march of ``rated`` (a :class:`RatedProfile` of the
@@ -241,11 +247,7 @@ def estimated_length(rated, geometry, hot_in, hot_flow, cold_in, cold_flow, duty
     base = getattr(rated, "base", None)
     if base is None or base.inlets != (hot_in.p, hot_in.h, cold_in.p, cold_in.h):
         return None
-    n = len(base.h_hot) - 1
-    q = np.linspace(0.0, duty, n + 1)
-    h_hot = hot_in.h - (duty - q) / hot_flow
-    h_cold = cold_in.h + q / cold_flow
-    G = (hot_flow / geometry.tube_area, cold_flow / geometry.annulus_area)
+    q, h_hot, h_cold, G = _zone_grid(geometry, hot_in, hot_flow, cold_in, cold_flow, duty, len(base.h_hot) - 1)
     _, _, guesses, lengths = _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, lengths=True)
     if guesses is None or lengths is None or not np.all(np.isfinite(lengths)):
         return None

@@ -182,15 +182,19 @@ class Fluid:
         found = self._tp_cache.get(key)
         if found is not None:
             return found
-        asked = f"T = {_fmt_T(T)}, p = {_fmt_p(p)}"
-        self._check_p(p, asked)
-        self._check_T(T, p, asked)
-        self._update(CP.PT_INPUTS, p, T, asked)
+        self._update_tp(T, p)
         found = self._snapshot(p)
         if len(self._tp_cache) >= _TP_CACHE:
             self._tp_cache.clear()
         self._tp_cache[key] = found
         return found
+
+    def _update_tp(self, T, p):
+        """The AbstractState updated to (T, p), after the range checks."""
+        asked = f"T = {_fmt_T(T)}, p = {_fmt_p(p)}"
+        self._check_p(p, asked)
+        self._check_T(T, p, asked)
+        self._update(CP.PT_INPUTS, p, T, asked)
 
     def _flash_pressure(self, p, asked):
         """The pressure a (p, h) or (p, s) flash is done at: ``p``, or, within 1e-9 of the critical
@@ -464,8 +468,7 @@ class Fluid:
 
         Positive where an adiabatic throttle cools the fluid.
         """
-        self.state_tp(T, p)  # the checks (its answer may come from the cache: update here)
-        self._update(CP.PT_INPUTS, p, T, f"T = {_fmt_T(T)}, p = {_fmt_p(p)}")
+        self._update_tp(T, p)
         return self._state.first_partial_deriv(CP.iT, CP.iP, CP.iHmass)
 
     def _jt_or_nan(self, T, p):

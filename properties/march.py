@@ -135,11 +135,9 @@ class PhMarch:
     def solve(self, p, h, guess=None, full=True):
         """The state at (p, h); ``guess`` is (T [K], molar density [mol/m3]) of a nearby state.
 
-        With ``full=False`` only ``(T, molar density or None, quality or None)`` is returned,
-        which saves building a :class:`State` where the march needs temperatures alone; with
-        ``full="sensitivities"``, ``(T, molar density, quality or None, jacobian or None)`` where
-        ``jacobian`` is (dp/dT, dp/dD, dh/dT, dh/dD) at the state (or at Newton's last iterate,
-        within about 1e-4 K of it)."""
+        With ``full="sensitivities"``, ``(T, molar density, quality or None, jacobian or None)``
+        is returned instead of a :class:`State`, where ``jacobian`` is (dp/dT, dp/dD, dh/dT,
+        dh/dD) at the state (or at Newton's last iterate, within about 1e-4 K of it)."""
         fl = self.fluid
         if not (0.0 < p <= fl.p_max) or abs(p / fl.p_critical - 1.0) < 1e-9 or h != h:
             return self._flash(p, h, full)  # the flash checks the pressure, and steps off the critical one
@@ -154,8 +152,6 @@ class PhMarch:
                 self.newton_states += 1
                 if full == "sensitivities":
                     return T_b, 1.0 / ((1.0 - q) / D_l + q / D_v), q, None
-                if not full:
-                    return T_b, None, q
                 rho = 1.0 / ((1.0 - q) / (D_l * self.M) + q / (D_v * self.M))
                 return State(fl.name, T_b, float(p), float(h), s_l + q * (s_v - s_l), rho, float(q), two_phase_label(q))
             side = "liquid" if h < h_l else "vapour"
@@ -177,8 +173,6 @@ class PhMarch:
         self.newton_states += 1
         if full == "sensitivities":
             return T, D, None, tuple(jacobian) if jacobian else self._jacobian()
-        if not full:
-            return T, D, None
         return State(fl.name, T, float(p), float(h), st.smass(), st.rhomass(), None,
                      fl._phase_name(st.phase()))
 
@@ -266,24 +260,19 @@ class PhMarch:
         if full == "sensitivities":
             one_phase = st.quality is None
             return st.T, st.density / self.M, st.quality, self._jacobian() if one_phase else None
-        return st if full is True else (st.T, st.density / self.M if st.quality is None else None, st.quality)
+        return st
 
-    def march(self, pressures, enthalpies, guesses=None, full=True):
-        """Solve states in order, each started from a straight-line extrapolation of the two
-        before (or from ``guesses``).  ``full=False`` returns temperatures [K] only."""
+    def march(self, pressures, enthalpies, guesses=None):
+        """Solve states in order, each a :class:`State` started from a straight-line
+        extrapolation of the two before (or from ``guesses``)."""
         out = []
         last = []  # up to two (h, T, D) of the latest single-phase states, newest last
         for k, (p, h) in enumerate(zip(pressures, enthalpies)):
             p, h = float(p), float(h)
             guess = guesses[k] if guesses is not None and guesses[k] is not None else _extrapolated(last, h)
-            solved = self.solve(p, h, guess, full)
-            if full:
-                out.append(solved)
-                T, D, q = solved.T, solved.density / self.M, solved.quality
-            else:
-                T, D, q = solved
-                out.append(T)
-            last = (last + [(h, T, D)])[-2:] if q is None else []
+            solved = self.solve(p, h, guess)
+            out.append(solved)
+            last = (last + [(h, solved.T, solved.density / self.M)])[-2:] if solved.quality is None else []
         return out
 
     def march_sensitivities(self, pressures, enthalpies, guesses=None, first=None):
@@ -311,8 +300,7 @@ class PhMarch:
             self.newton_states += int(done.sum())
             if done.all():
                 return Marched(T, rho, dT_dp, dT_dh, drho_dp, drho_dh, q)
-        fl = self.fluid
-        p_lo, p_hi, p_max, p_c = fl.p_triple, fl.p_critical * (1 - 1e-9), fl.p_max, fl.p_critical
+        p_max, p_c = self.fluid.p_max, self.fluid.p_critical
         pl = np.asarray(pressures, dtype=float).tolist()
         hl = np.asarray(enthalpies, dtype=float).tolist()
         last, slopes = [], None
@@ -332,20 +320,11 @@ class PhMarch:
             # The common case inline (one phase, a start on its side of the saturation curve);
             # anything else as solve() does it.
             if guess is not None and 0.0 < p <= p_max and abs(p / p_c - 1.0) >= 1e-9 and h == h:
-                side = limit = 0.0
-                if p_lo < p < p_hi:
-                    T_b, T_d, h_l, h_v, _, _, D_l, D_v = self.bounds(p)
-                    if h_l <= h <= h_v or abs(T_d - T_b) > 1e-9 * T_b:
-                        guess = None
-                    elif h < h_l:
-                        side, limit = -1.0, T_b
-                        if guess[0] >= T_b:
-                            guess = (T_b * (1 - 1e-4), D_l)
-                    else:
-                        side, limit = 1.0, T_d
-                        if guess[0] <= T_d:
-                            guess = (T_d * (1 + 1e-4), D_v)
-                if guess is not None:
+                where = self._one_phase_side(p, h)
+                if where is not None:
+                    side, limit, start = where
+                    if side * (guess[0] - limit) <= 0.0 and side != 0.0:  # a start on the other side
+                        guess = start
                     found = self._settle(p, h, guess[0], guess[1], side, limit)
             if found is not None:
                 Tk, Dk, a, b, c, d = found
@@ -370,6 +349,22 @@ class PhMarch:
             else:
                 slopes = None
         return Marched(T, rho, dT_dp, dT_dh, drho_dp, drho_dh, q)
+
+    def _one_phase_side(self, p, h):
+        """Where a one-phase state at (p, h) must lie: ``(side, limit, start)`` with ``side`` -1
+        for a liquid (T below ``limit``, the bubble point), +1 for a vapour (above the dew
+        point) and 0 with no saturation curve at ``p``; ``start`` the (T, molar density) just
+        inside that side.  None where the state is two-phase or in a pseudo-pure fluid's band
+        (:meth:`solve` takes those)."""
+        fl = self.fluid
+        if not fl.p_triple < p < fl.p_critical * (1 - 1e-9):
+            return 0.0, 0.0, None
+        T_b, T_d, h_l, h_v, _, _, D_l, D_v = self.bounds(p)
+        if h_l <= h <= h_v or abs(T_d - T_b) > 1e-9 * T_b:
+            return None
+        if h < h_l:
+            return -1.0, T_b, (T_b * (1 - 1e-4), D_l)
+        return 1.0, T_d, (T_d * (1 + 1e-4), D_v)
 
     def _settle(self, p, h, T, D, side, limit):
         """One one-phase state by Newton's method (:meth:`_newton`, with its final step) from
@@ -406,19 +401,15 @@ class PhMarch:
         limit = [0.0] * n
         pl, hl, Tl, Dl = p.tolist(), h.tolist(), T.tolist(), D.tolist()
         act = active.tolist()
-        p_lo, p_hi = fl.p_triple, fl.p_critical * (1 - 1e-9)
         for k in range(n):
-            if not (act[k] and p_lo < pl[k] < p_hi):
+            if not act[k]:
                 continue
-            T_b, T_d, h_l, h_v, _, _, _, _ = self.bounds(pl[k])
-            if h_l <= hl[k] <= h_v or abs(T_d - T_b) > 1e-9 * T_b:
+            where = self._one_phase_side(pl[k], hl[k])
+            if where is None:
                 act[k] = False
-            elif hl[k] < h_l:
-                side[k], limit[k] = -1.0, T_b
-                act[k] = Tl[k] < T_b
             else:
-                side[k], limit[k] = 1.0, T_d
-                act[k] = Tl[k] > T_d
+                side[k], limit[k], _ = where
+                act[k] = side[k] == 0.0 or side[k] * (Tl[k] - limit[k]) > 0.0
         done = [False] * n
         f_p, f_h = [0.0] * n, [0.0] * n
         j0, j1, j2, j3 = [0.0] * n, [0.0] * n, [0.0] * n, [0.0] * n
