@@ -366,21 +366,23 @@ class Recuperator:
                    for st, flow in colds)
         return duty / most
 
-    def profile(self, fluid, hot_in, colds, duty, zones=None, flow=None, cold_fluid=None):
+    def profile(self, fluid, hot_in, colds, duty, zones=None, flow=None, cold_fluid=None, rough=False):
         """Temperature profile for ``duty`` [J/kg compressed] (:class:`~cycle.processes.ExchangerProfile`).
 
         With a geometry, ``flow`` [kg/s] is the compressor flow, and the profile carries the
-        hardware's march (``rating``: lengths, coefficients, computed pressures).
+        hardware's march (``rating``: lengths, coefficients, computed pressures); ``rough``: one
+        march, its pressures not settled (a root finder's step; the rating says whether it is
+        ``settled`` all the same).
         """
         zones = zones or self.zones
         if self.geometry is not None:
             from dataclasses import replace
 
-            from cycle.tube_exchanger import rate
+            from cycle.tube_exchanger import PRESSURE_RTOL, rate
 
             (cold_in, cold_flow), = colds
             rated = rate(fluid, self.geometry, self.wall, hot_in, flow, cold_in, cold_flow * flow, duty * flow,
-                         zones, self.key, start=self._last_rating)
+                         zones, self.key, start=self._last_rating, rtol=math.inf if rough else PRESSURE_RTOL)
             if duty > 0 and math.isfinite(rated.length):
                 self._last_rating = rated
             return replace(rated.profile, rating=rated)

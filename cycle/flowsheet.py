@@ -144,14 +144,16 @@ class Section:
     def __post_init__(self):
         self._profiles = {}
 
-    def profile(self, duty):
-        """The march at ``duty`` (remembered: a root finder asks for the same duty again)."""
+    def profile(self, duty, rough=False):
+        """The march at ``duty`` (remembered: a root finder asks for the same duty again);
+        ``rough``: a rated exchanger's pressures need not be settled (one march: a root finder's
+        step), and a rough rating remembered is made again, settled, when one is asked for."""
         found = self._profiles.get(duty)
-        if found is None:
+        if found is None or not (rough or found.rating is None or found.rating.settled):
             self.calls += 1
             flow = self.flow_of(duty) if self.recuperator.geometry is not None else None
             found = self.recuperator.profile(self.fluid, self.hot_in, self.colds_of(duty), duty, flow=flow,
-                                             cold_fluid=self.cold_fluid)
+                                             cold_fluid=self.cold_fluid, rough=rough)
             if len(self._profiles) > 64:
                 self._profiles.clear()
             self._profiles[duty] = found
@@ -169,7 +171,7 @@ class Section:
         """From the rating at ``duty`` (made first if need be), ``estimate(duty) -> length [m]``
         at other duties with no property call, or None
         (:meth:`cycle.equipment.Recuperator.length_estimator`)."""
-        found = self.recuperator.length_estimator(self.profile(duty).rating, self.hot_in)
+        found = self.recuperator.length_estimator(self.profile(duty, rough=True).rating, self.hot_in)
         if found is None:
             return None
         return lambda d: found(d, self.colds_of(d), self.flow_of(d))
@@ -598,13 +600,16 @@ def _length_steps(section, needed, target, duty, lowest_duty, Q_hi):
     allowed = 0.1 * SIZING_TOLERANCE["length"] * target
     slope = None
     for step in range(1, ESTIMATE_STEPS + 1):
-        L = needed(duty)
+        L = needed(duty, rough=True)
         if not (math.isfinite(L) and L > 0):
             return None
         if abs(L - target) <= allowed and slope is not None:
-            # The duty tolerance that meets the length to a tenth of its own: |dL/dQ| = L^2 |d(1/L)/dQ|.
-            xtol = max(allowed / (target * target * abs(slope)), 4e-16 * Q_hi)
-            return duty, RootResults(duty, step, step, 0, method="newton-on-estimates"), L, xtol
+            if not section.profile(duty, rough=True).rating.settled:
+                L = needed(duty)  # the pressures settled at this duty, the length checked again
+            if abs(L - target) <= allowed:
+                # The duty tolerance that meets the length to a tenth of its own: |dL/dQ| = L^2 |d(1/L)/dQ|.
+                xtol = max(allowed / (target * target * abs(slope)), 4e-16 * Q_hi)
+                return duty, RootResults(duty, step, step, 0, method="newton-on-estimates"), L, xtol
         model = section.length_estimator(duty)
         if model is None:
             return None
@@ -613,7 +618,11 @@ def _length_steps(section, needed, target, duty, lowest_duty, Q_hi):
             found = model(d)
             return None if found is None or not found > 0 else 1.0 / found - 1.0 / target
 
-        x0, g0 = duty, 1.0 / L - 1.0 / target
+        # The model's own value at the march (its pressures settled: a rough march's length differs
+        # from it by about the pressures' change), so that its first secant slope is its own.
+        x0, g0 = duty, gap(duty)
+        if g0 is None:
+            return None
         if slope is None:
             x1 = duty + 1e-6 * Q_hi * (1.0 if duty < 0.5 * (lowest_duty + Q_hi) else -1.0)
             g1 = gap(x1)
@@ -640,11 +649,11 @@ def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
     key = section.recuperator.key
     target = section.recuperator.spec.geometry.length
 
-    def needed(duty):
+    def needed(duty, rough=False):
         if not math.isfinite(section.flow_of(duty)):
             return math.inf
         try:
-            prof = section.profile(duty)
+            prof = section.profile(duty, rough=rough)
         except PressureCollapseError:
             return math.inf
         if prof.min_approach <= TOUCH_APPROACH:
@@ -661,7 +670,7 @@ def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
             d0 = brentq(lambda d: section.effectiveness(d) - 0.9, lowest_duty, Q_hi, xtol=1e-6 * Q_hi)
         except ValueError:
             d0 = 0.5 * (lowest_duty + Q_hi)
-        L0 = needed(d0)
+        L0 = needed(d0, rough=True)
         found = _length_steps(section, needed, target, d0, lowest_duty, Q_hi) if math.isfinite(L0) else None
         if found is not None:
             return found
@@ -1023,7 +1032,16 @@ class Liquefier:
         q0 = sc.heat_leak / m_fixed if m_fixed else 0.0
         # y = 0 when the high-pressure outlet leaves with h = hg - q (all the flow returns).
         eps_crit = rec.effectiveness(fl, hot_in, [(vapour, 1.0)], hot_in.h - vapour.h + q0, cold_fluid)
-        if y <= 0:
+        # Also no liquid where the solve stopped at the least duty, short of its sizing (a rated
+        # exchanger too short to reach the critical effectiveness): the yield there is round-off.
+        at_least = report.status == "missed" and duty <= lowest + 1e-12 * abs(hot_in.h)
+        if at_least and rec.spec.mode == "length":
+            raise NoLiquefactionError(
+                f"no liquid: {rec.key}.geometry.length {report.target:g} m is too short to make liquid at this "
+                f"production: it needs {report.achieved:.4g} m to reach the critical effectiveness {eps_crit:.4f} for "
+                f"these pressures and temperatures (and heat leak); lengthen it or raise the high pressure, or "
+                f"precool")
+        if y <= 0 or at_least:
             raise NoLiquefactionError(self._critical_message(eps, eps_crit, rec.key.replace("_", " ")))
         return duty, prof, report, y, eps, eps_crit, flow_at(y)
 
@@ -1048,11 +1066,17 @@ class Liquefier:
         spec = self.scenario.recuperator if key == "recuperator" else self.scenario.cold_recuperator
         sizing = ""
         if spec is not None and spec.mode != "effectiveness":
-            value = f"{spec.min_approach:g} K" if spec.mode == "min_approach" else f"{spec.ua:g} W/K"
-            sizing = f" (with {key.replace(' ', '_')}.{spec.mode} {value})"
+            if spec.mode == "min_approach":
+                name, value = "min_approach", f"{spec.min_approach:g} K"
+            elif spec.mode == "ua":
+                name, value = "ua", f"{spec.ua:g} W/K"
+            else:  # a rated exchanger
+                name, value = "geometry.length", f"{spec.geometry.length:g} m"
+            sizing = f" (with {key.replace(' ', '_')}.{name} {value})"
+        remedy = "lengthen it" if spec is not None and spec.mode == "length" else "raise the effectiveness"
         return (f"no liquid: the {key} effectiveness here{sizing}, {eps:.4f}, is below the critical value "
-                f"{eps_crit:.4f} for these pressures and temperatures (and heat leak); raise the "
-                f"effectiveness or the high pressure, or precool")
+                f"{eps_crit:.4f} for these pressures and temperatures (and heat leak); {remedy} or raise the "
+                f"high pressure, or precool")
 
     # -- results ----------------------------------------------------------------------
 

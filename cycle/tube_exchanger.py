@@ -13,7 +13,7 @@ The high-pressure stream must stay one phase (a supercritical or superheated gas
 compressed liquid): a condensing zone is refused, since no condensation correlation is used.
 """
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -65,6 +65,10 @@ class RatedProfile:
         UA of each zone [W/K].
     passes : int
         Marches made.
+    settled : bool
+        Whether the pressures were settled as for an answer (within :data:`PRESSURE_RTOL`, or
+        after :data:`PRESSURE_PASSES` marches); False only for a rating asked for with a looser
+        ``rtol`` that stopped short of it (a root finder's step, not an answer).
     base : object
         The last march, for the next duty's rating to start from (not part of the result).
     """
@@ -83,6 +87,7 @@ class RatedProfile:
     regime_low: tuple
     conductance: np.ndarray
     passes: int
+    settled: bool = True
     base: object = field(default=None, repr=False, compare=False)
 
     @property
@@ -114,6 +119,10 @@ def _lmtd(a, b):
     """Log-mean of the end differences ``a`` and ``b`` (arrays) [K]; 0 where either is not
     positive (the streams touch or cross)."""
     a, b = np.asarray(a, dtype=float), np.asarray(b, dtype=float)
+    if a.size and a.min() > 0 and b.min() > 0:
+        d = a - b
+        if not (np.abs(d) <= 1e-6 * np.maximum(a, b)).any():  # the usual case, the same formula
+            return d / np.log(a / b)
     ok = (a > 0) & (b > 0)
     a_, b_ = np.where(ok, a, 1.0), np.where(ok, b, 1.0)
     close = np.abs(a_ - b_) <= 1e-6 * np.maximum(a_, b_)
@@ -144,10 +153,18 @@ class _Pass:
     new_cold: np.ndarray
     inlets: tuple              # (hot p, hot h, cold p, cold h) it was made for
     G: tuple                   # mass fluxes of the hot and cold streams [kg/(m2 s)]
+    duty: float                # [W]
     details: tuple             # h_i, h_o, re_i, re_o, v_i, v_o, ma_i, ma_o, regimes, conductance
+    # How the conductances per metre changed with the duty [1/(m K)] from the last rating at another
+    # duty and the same flow (a secant), or None: the model moves them along it.
+    per_metre_slope: object = None
+    # The pressures last settled on this march's model: where the next settle starts (a root
+    # finder's steps are near one another).
+    recent: dict = field(default_factory=dict, compare=False, repr=False)
 
 
-def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zones, key="recuperator", start=None):
+def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zones, key="recuperator", start=None,
+         rtol=PRESSURE_RTOL):
     """March a tube-in-tube exchanger passing ``duty`` [W].
 
     Parameters
@@ -170,6 +187,10 @@ def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zone
         A neighbouring duty's rating (same inlet states): the pressures of the first march
         come from a linear estimate around it.  Fewer marches, the same answer to
         :data:`PRESSURE_RTOL`.
+    rtol : float, optional
+        The share of each inlet pressure within which a march's pressures must come back; a root
+        finder's intermediate step may ask for less (``math.inf``: one march), and the rating
+        then says whether it is ``settled`` all the same.
 
     Returns
     -------
@@ -200,17 +221,24 @@ def rate(fluid, geometry, wall, hot_in, hot_flow, cold_in, cold_flow, duty, zone
         p_hot, p_cold, guesses = _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in)
     else:
         p_hot, p_cold = np.full(n + 1, float(hot_in.p)), np.full(n + 1, float(cold_in.p))
+    slope = None
     for passes in range(1, PRESSURE_PASSES + 1):
         march = _march(fluid, geometry, wall, key, p_hot, p_cold, h_hot, h_cold, q, G, hot_in, cold_in, inlets,
                        guesses)
+        if passes == 1 and guesses is not None and base.G[0] == G[0] and base.duty != duty:
+            slope = (march.per_metre - base.per_metre) / (duty - base.duty)
+        if slope is not None:
+            march = replace(march, per_metre_slope=slope)
         change = _change(march.new_hot, p_hot, march.new_cold, p_cold, hot_in, cold_in)
-        if change <= PRESSURE_RTOL or not np.all(np.isfinite(march.lengths)):
+        settled = change <= PRESSURE_RTOL or not np.all(np.isfinite(march.lengths))
+        if settled or change <= rtol:
             break
         p_hot, p_cold, guesses = _estimate(march, h_hot, h_cold, q, G, hot_in, cold_in)
+    settled = settled or rtol <= PRESSURE_RTOL  # after PRESSURE_PASSES the last change stands
     h_i, h_o, re_i, re_o, v_i, v_o, ma_i, ma_o, (reg_i, reg_o), conductance = march.details
     profile = ExchangerProfile(q / (hot_flow if hot_flow else 1.0), march.hot.T, march.cold.T, p_hot, p_cold)
     return RatedProfile(profile, march.lengths, h_i, h_o, re_i, re_o, v_i, v_o, ma_i, ma_o, reg_i, reg_o,
-                        conductance, passes, march)
+                        conductance, passes, settled, march)
 
 
 def _change(new_hot, p_hot, new_cold, p_cold, hot_in, cold_in):
@@ -258,37 +286,81 @@ def _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, passes=40, lengths=Fal
     """Boundary pressures at enthalpies ``h_hot``, ``h_cold`` on the linear model of the march
     ``base``, iterated until they settle (to a tenth of :data:`PRESSURE_RTOL`); and the states'
     temperatures and densities there, as the next march's starting guesses (with ``lengths``,
-    also the zones' lengths on the model [m])."""
-    hot, cold = base.hot, base.cold
-    T_h0 = hot.T + hot.dT_dh * (h_hot - base.h_hot)
-    r_h0 = hot.density + hot.drho_dh * (h_hot - base.h_hot)
-    T_c0 = cold.T + cold.dT_dh * (h_cold - base.h_cold)
-    r_c0 = cold.density + cold.drho_dh * (h_cold - base.h_cold)
-    dq = np.diff(q)
+    also the zones' lengths on the model [m]).
+
+    The two streams are one (2, zones + 1) array (row 0 the hot stream) so that a settling pass
+    costs a few NumPy operations; its arithmetic is that of :func:`_new_pressures`.
+    """
+    model = base.recent.get("model")
+    if model is None:  # the march's arrays, both streams stacked
+        hot, cold = base.hot, base.cold
+        model = base.recent["model"] = tuple(np.stack(pair) for pair in (
+            (base.h_hot, base.h_cold), (hot.T, cold.T), (hot.dT_dh, cold.dT_dh), (hot.density, cold.density),
+            (hot.drho_dh, cold.drho_dh), (hot.dT_dp, cold.dT_dp), (hot.drho_dp, cold.drho_dp),
+            (base.p_hot, base.p_cold)))
+    h_base, T_base, dT_dh, r_base, drho_dh, dT_dp, drho_dp, p_base = model
+    dh = np.stack([h_hot, h_cold]) - h_base
+    T0 = T_base + dT_dh * dh
+    r0 = r_base + drho_dh * dh
+    per_metre = base.per_metre
+    if base.per_metre_slope is not None and G[0] == base.G[0]:
+        moved = per_metre + base.per_metre_slope * (q[-1] - base.duty)
+        per_metre = moved if moved.min() > 0 else per_metre
+    metres_per_kelvin = np.diff(q) / per_metre  # a zone's length times its log-mean difference
     # A flow other than the base's: friction scaled with the square of the mass flux (the friction
-    # factors and conductances kept: an estimate, checked by the next march).
-    friction_hot = base.friction_hot * (G[0] / base.G[0]) ** 2
-    friction_cold = base.friction_cold * (G[1] / base.G[1]) ** 2
-    p_hot, p_cold = base.new_hot, base.new_cold
+    # factors and conductances kept: an estimate, checked by the next march); halved, as it acts on
+    # the sum of a zone's two boundary volumes.
+    friction = 0.5 * np.stack([base.friction_hot * (G[0] / base.G[0]) ** 2,
+                               base.friction_cold * (G[1] / base.G[1]) ** 2])
+    # Acceleration: G^2 (v_warm - v_cold) on the hot stream, G^2 (v_warm - v_cold) against the cold.
+    accel = np.array([[G[0] ** 2], [-G[1] ** 2]])
+    p_in = np.array([[hot_in.p], [cold_in.p]])
+    tol = 0.1 * PRESSURE_RTOL * p_in
+    cumulative = np.zeros_like(p_base)
+    p = np.stack(_settle_start(base, q[-1]))
+    settled = False
     for _ in range(passes):
-        T_h = T_h0 + hot.dT_dp * (p_hot - base.p_hot)
-        r_h = r_h0 + hot.drho_dp * (p_hot - base.p_hot)
-        T_c = T_c0 + cold.dT_dp * (p_cold - base.p_cold)
-        r_c = r_c0 + cold.drho_dp * (p_cold - base.p_cold)
-        lmtd = _lmtd(T_h[1:] - T_c[1:], T_h[:-1] - T_c[:-1])
-        if np.any(lmtd <= 0) or np.any(r_h <= 0) or np.any(r_c <= 0):
-            # The model leaves its range: march from the base's pressures.
-            return (base.new_hot, base.new_cold, None) + ((None,) if lengths else ())
-        zone_lengths = dq / (base.per_metre * lmtd)
-        new_hot, new_cold = _new_pressures(zone_lengths, 1.0 / r_h, 1.0 / r_c, friction_hot, friction_cold, G, hot_in,
-                                           cold_in)
-        change = _change(new_hot, p_hot, new_cold, p_cold, hot_in, cold_in)
-        p_hot, p_cold = new_hot, new_cold
-        if change <= 0.1 * PRESSURE_RTOL:
+        dp = p - p_base
+        T = T0 + dT_dp * dp
+        r = r0 + drho_dp * dp
+        if r.min() <= 0:
             break
-    if np.min(p_hot) <= 0.05 * hot_in.p or np.min(p_cold) <= 0.05 * cold_in.p:
+        gap = T[0] - T[1]
+        a, b = gap[1:], gap[:-1]
+        if a.min() <= 0 or b.min() <= 0:
+            break
+        lmtd = _lmtd(a, b)
+        zone_lengths = metres_per_kelvin / lmtd
+        v = 1.0 / r
+        drop = friction * zone_lengths * (v[:, :-1] + v[:, 1:]) + accel * (v[:, :-1] - v[:, 1:])
+        np.cumsum(drop, axis=1, out=cumulative[:, 1:])
+        # The hot stream loses from the warm end (index -1) down, the cold one from the cold end up.
+        new = np.stack([hot_in.p - cumulative[0, -1] + cumulative[0], cold_in.p - cumulative[1]])
+        settled = (np.abs(new - p) <= tol).all()
+        p = new
+        if settled:
+            break
+    else:
+        settled = True  # after ``passes`` the last pressures stand
+    if not settled or (p.min(axis=1) <= 0.05 * p_in[:, 0]).any():
+        # The model leaves its range: march from the base's pressures.
         return (base.new_hot, base.new_cold, None) + ((None,) if lengths else ())
-    return (p_hot, p_cold, ((T_h, r_h), (T_c, r_c))) + ((zone_lengths,) if lengths else ())
+    base.recent["settled"] = base.recent.get("settled", [])[-1:] + [(float(q[-1]), p[0], p[1])]
+    return (p[0], p[1], ((T[0], r[0]), (T[1], r[1]))) + ((zone_lengths,) if lengths else ())
+
+
+def _settle_start(base, duty):
+    """Where the pressures on the model of the march ``base`` start settling at ``duty`` [W]: on
+    the line through the last two duties settled on it (its own new pressures before any)."""
+    seen = base.recent.get("settled", [])
+    if not seen:
+        return base.new_hot, base.new_cold
+    q1, hot1, cold1 = seen[-1]
+    if len(seen) == 1 or seen[0][0] == q1:
+        return hot1, cold1
+    q0, hot0, cold0 = seen[0]
+    w = (duty - q1) / (q1 - q0)
+    return hot1 + w * (hot1 - hot0), cold1 + w * (cold1 - cold0)
 
 
 def _march(fluid, geometry, wall, key, p_hot, p_cold, h_hot, h_cold, q, G, hot_in, cold_in, inlets, guesses):
@@ -350,7 +422,7 @@ def _march(fluid, geometry, wall, key, p_hot, p_cold, h_hot, h_cold, q, G, hot_i
     v_i, v_o = G[0] / rho_h, G[1] / rho_c
     details = (h_i, h_o, re_i, re_o, v_i, v_o, v_i / a_h, v_o / a_c, (tuple(reg_i), tuple(reg_o)), conductance)
     return _Pass(h_hot, h_cold, p_hot, p_cold, hot, cold, per_metre, friction_hot, friction_cold, lengths, new_hot,
-                 new_cold, inlets, G, details)
+                 new_cold, inlets, G, float(q[-1]), details)
 
 
 def _two_phase(fluid, p, h_a, h_b):

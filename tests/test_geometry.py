@@ -244,3 +244,25 @@ def test_newton_on_rating_models_finds_the_duty_brent_finds(length, flow, monkey
     assert abs(newton.summary()["recuperator_length_m"] - L) <= 0.1 * flowsheet.SIZING_TOLERANCE["length"] * L
     assert newton.liquid_yield == pytest.approx(brent.liquid_yield, rel=1e-7)
     assert newton.solve.function_calls < brent.solve.function_calls
+
+
+def test_a_rated_exchanger_too_short_for_any_liquid_names_its_length():
+    # Too short to reach the critical effectiveness at this flow: no liquid, said with the length
+    # given and the length needed (this once came out as an unconverged result with a yield of
+    # round-off, or, at another flow, as a failure to format a UA a rated exchanger has not got).
+    from cycle.errors import NoLiquefactionError
+
+    for length in ("1 m", "3 m"):
+        data = bench({"zones": 20, "geometry": dict(copy.deepcopy(GEOMETRY), length=length)})
+        with pytest.raises(NoLiquefactionError, match=rf"recuperator\.geometry\.length {length} is too short to make "
+                                                     r"liquid at this production: it needs 5\.\d+ m to reach the "
+                                                     r"critical effectiveness 0\.86\d\d"):
+            solve_scenario(parse_scenario(data))
+    wider = {"tubes": 6, "inner_tube": {"inner_diameter": "6 mm", "outer_diameter": "8 mm"},
+             "outer_tube": {"inner_diameter": "22 mm"}, "wall_material": "stainless steel 304", "length": "12 m"}
+    data = bench({"zones": 20, "geometry": wider}, production={"compressor_flow": "100 kg/h"}, heat_leak="6 W",
+                 aftercooler={"outlet_temperature": "305 K", "pressure_drop": "0.4 bar"})
+    with pytest.raises(NoLiquefactionError, match=r"recuperator\.geometry\.length 12 m is too short to make liquid at "
+                                                 r"this production: it needs 15\.\d+ m to reach the critical "
+                                                 r"effectiveness 0\.87\d\d .*; lengthen it"):
+        solve_scenario(parse_scenario(data))
