@@ -419,25 +419,55 @@ def _bracket(f, guess, lo, hi, decreasing, step=None):
 ESTIMATE_STEPS = 8
 
 
-def _secant_on_model(residual, duty, value, slope, lowest_duty, Q_hi, floor):
+def _secant_on_model(residual, duty, value, slope, lowest_duty, Q_hi, floor, curved=False):
     """Secant steps on a model's ``residual`` (cheap: no property call) from ``duty``, where it
     is ``value``, and a first ``slope``, to its root: (root, last slope), or None where the model
     gives no value.  Far from ``duty`` the next march corrects what the model misses, so the
     steps need only settle to a thousandth of the distance from it (near it, to ``floor``); a
-    step past an end of the range goes halfway to it."""
+    step past an end of the range goes halfway to it, and one to where the model gives no value
+    (its streams cross) is halved until it does.  With ``curved``, from the third point on, the
+    step is that of inverse quadratic interpolation through the last three where they bracket
+    the root (two evaluations fewer a rated exchanger's first model, whose residual is curved
+    over the step; near the perfect exchanger a UA's residual is not well fitted by it)."""
     x0, g0 = duty, value
+    seen = [(x0, g0)]
     for _ in range(40):
         x1 = x0 - g0 / slope
+        if curved and len(seen) >= 3:
+            x1 = _inverse_quadratic(seen[-3:], x0, x1)
         if not lowest_duty < x1 < Q_hi:
             x1 = 0.5 * (x0 + (Q_hi if x1 >= Q_hi else lowest_duty))
         if abs(x1 - x0) <= max(floor, 1e-3 * abs(x1 - duty)):
             return x1, slope
         g1 = residual(x1)
+        for _ in range(8):
+            if g1 is not None:
+                break
+            x1 = 0.5 * (x0 + x1)
+            g1 = residual(x1)
         if g1 is None or g1 == g0:
             return None
         slope = (g1 - g0) / (x1 - x0)
         x0, g0 = x1, g1
+        seen.append((x0, g0))
     return None
+
+
+def _inverse_quadratic(points, x_last, x_secant):
+    """The root of the quadratic in the residual through three (duty, residual) ``points``
+    (inverse quadratic interpolation, as in Brent's method) where their residuals are of both
+    signs and it lies among them, no more than twice as far from ``x_last`` as the secant step
+    ``x_secant``; otherwise the secant step."""
+    (xa, ga), (xb, gb), (xc, gc) = points
+    if ga == gb or gb == gc or ga == gc:
+        return x_secant
+    if min(ga, gb, gc) >= 0 or max(ga, gb, gc) <= 0:
+        return x_secant
+    x = (xa * gb * gc / ((ga - gb) * (ga - gc)) + xb * ga * gc / ((gb - ga) * (gb - gc))
+         + xc * ga * gb / ((gc - ga) * (gc - gb)))
+    if math.isfinite(x) and min(xa, xb, xc) < x < max(xa, xb, xc) and abs(x - x_last) <= 2.0 * abs(x_secant - x_last):
+        return x
+    return x_secant
 
 
 def _steps_on_estimates(section, flow_of, target, guess, lowest_duty, Q_hi, tol):
@@ -629,8 +659,10 @@ def _length_steps(section, needed, target, duty, lowest_duty, Q_hi):
             if g1 is None or g1 == g0:
                 return None
             slope = (g1 - g0) / (x1 - x0)
-        found = _secant_on_model(gap, x0, g0, slope, lowest_duty, Q_hi, 4e-16 * Q_hi)
+        found = _secant_on_model(gap, x0, g0, slope, lowest_duty, Q_hi, 4e-16 * Q_hi, curved=True)
         if found is None or not found[1] < 0:  # 1/length falls as the duty rises
+            return None
+        if abs(found[0] - x0) <= 1e-12 * Q_hi:  # no way on (the length is beyond what the streams can use)
             return None
         duty, slope = found
     return None

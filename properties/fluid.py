@@ -413,19 +413,23 @@ class Fluid:
             Where a state is two-phase, outside the equation of state, or CoolProp has no
             transport model for the fluid.
         """
-        T = np.asarray(T, dtype=float)
-        D = np.asarray(density, dtype=float) / self.molar_mass
-        out = np.empty((4, T.size))
+        T = np.asarray(T, dtype=float).ravel()
+        D = (np.asarray(density, dtype=float).ravel() / self.molar_mass).tolist()
         st = self._state
-        for i in range(T.size):
-            try:
-                st.update(CP.DmolarT_INPUTS, D[i], T[i])
-                out[:, i] = st.viscosity(), st.conductivity(), st.cpmass(), st.speed_sound()
-            except ValueError as err:
-                self._reset_state()
-                self._fail(f"T = {_fmt_T(T[i])}, density = {D[i] * self.molar_mass:.6g} kg/m3 (transport properties)",
-                           f"CoolProp has no transport property here ({str(err).strip()})")
-        return out[0], out[1], out[2], out[3]
+        update, inputs = st.update, CP.DmolarT_INPUTS
+        mu, k, cp, a = st.viscosity, st.conductivity, st.cpmass, st.speed_sound
+        out = []
+        try:
+            for D_i, T_i in zip(D, T.tolist()):  # Python floats: no NumPy scalar per call
+                update(inputs, D_i, T_i)
+                out.append((mu(), k(), cp(), a()))
+        except ValueError as err:
+            i = len(out)
+            self._reset_state()
+            self._fail(f"T = {_fmt_T(T[i])}, density = {D[i] * self.molar_mass:.6g} kg/m3 (transport properties)",
+                       f"CoolProp has no transport property here ({str(err).strip()})")
+        found = np.array(out).reshape(-1, 4).T
+        return found[0], found[1], found[2], found[3]
 
     @property
     def _march(self):
