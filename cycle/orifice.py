@@ -162,9 +162,10 @@ def _is_number(x):
 def size_valve(fluid, inlet, outlet_pressure, mass_flow=None, discharge_coefficient=DEFAULT_DISCHARGE_COEFFICIENT):
     """Critical mass flux, choking and least orifice of a throttle valve (HEM, direct integration).
 
-    The flux G(p) = rho(p, s0) sqrt(2 (h0 - h(p, s0))) is scanned at :data:`SCAN_POINTS`
-    pressures spaced logarithmically from the inlet to the outlet pressure; its largest value is
-    refined by a bounded Brent search on ln p between the scanned neighbours (to
+    The flux G(p) = rho(p, s0) sqrt(2 (h0 - h(p, s0))) is scanned at up to :data:`SCAN_POINTS`
+    pressures spaced logarithmically from the inlet to the outlet pressure (down to where it has
+    fallen twice in a row: it has one maximum along an isentrope); its largest value is refined
+    by a bounded Brent search on ln p between the scanned neighbours (to
     :data:`LOG_P_TOLERANCE`).  Where the largest scanned flux is at the outlet and the flux still
     rises there (one more evaluation just above the outlet tells), the valve is not choked and
     the flux is G at the outlet.  An expansion that leaves the equation of state on the way down
@@ -260,6 +261,11 @@ def _largest_flux(fluid, inlet, p_out):
             break
         xs.append(x)
         Gs.append(G)
+        if len(Gs) >= 3 and Gs[-1] < Gs[-2] < Gs[-3]:
+            # Fallen twice past its largest: along an isentrope the flux has one maximum, so it
+            # lies between the scanned neighbours of the largest, and the rest of the way down
+            # need not be scanned.
+            break
     best = max(range(len(Gs)), key=Gs.__getitem__)
     try:
         if best == len(Gs) - 1:
