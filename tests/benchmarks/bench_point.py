@@ -299,6 +299,36 @@ def main():
     for label, t in stages.items():
         say(f"| {label} | {t * 1e3:.2f} ms | {100 * t / whole:.0f} % |")
 
+    # The same for the rated geometry point: its marches (of which the zones' transport
+    # properties), the length model's evaluations between them, the rest.
+    import cycle.tube_exchanger as tube_exchanger
+    from properties.fluid import Fluid
+
+    spent_in.clear()
+    saved = [(tube_exchanger, "rate", timing(tube_exchanger, "rate", "ratings")),
+             (Fluid, "transport_td", timing(Fluid, "transport_td", "transport")),
+             (tube_exchanger, "estimated_length", timing(tube_exchanger, "estimated_length", "model"))]
+    runs = 2 * repeat
+    start = time.perf_counter()
+    for _ in range(runs):
+        solve_point(geometry)
+    whole = (time.perf_counter() - start) / runs
+    for owner, name, inner in saved:
+        setattr(owner, name, inner)
+    stages = {f"marches ({rated.solve.function_calls} a point: both streams, correlations, pressures), "
+              f"less their transport properties": (spent_in["ratings"] - spent_in["transport"]) / runs,
+              "transport properties of every zone (one density-temperature update each)": spent_in["transport"] / runs,
+              "length model evaluations between the marches (no property call)": spent_in["model"] / runs}
+    stages["the rest (first duty, states, valve, exergy, results)"] = whole - sum(stages.values())
+    say()
+    say(f"Where the rated geometry point's time goes ({runs} runs timed with the stages wrapped: "
+        f"{whole * 1e3:.2f} ms a point):")
+    say()
+    say("| stage | time | share |")
+    say("|---|---|---|")
+    for label, t in stages.items():
+        say(f"| {label} | {t * 1e3:.2f} ms | {100 * t / whole:.0f} % |")
+
     if args.write:
         head = (f"# Performance\n\nMeasured by `python tests/benchmarks/bench_point.py --write {args.write}` on "
                 f"{datetime.date.today().isoformat()}: Python {platform.python_version()}, CoolProp "
@@ -335,34 +365,52 @@ def main():
   mix from a nearby state (`Fluid.state_ph(..., guess=)`), repeated (T, p) states from a cache.
 - **A rated geometry point** (`cycle/tube_exchanger.py`, `docs/recuperator-geometry.md`): the
   correlations on NumPy arrays for all zones at once, transport properties from one
-  density-temperature update per zone, the pressures settled on a linear model of the last march
-  so a duty takes one or two marches, and the length solved on 1/length (eight rated profiles a
-  point).
+  density-temperature update per zone, and the length by Newton's method on the marches
+  (`_length_steps`): each step one march whose pressures are not settled first (a rough rating),
+  the next duty from the root of the length of that march's linear model (its conductances per
+  metre moved along their secant in the duty from the march before, its pressures settled on the
+  model, both streams in one array; the first, far, root by inverse quadratic steps), and the
+  pressures settled only at the duty that meets the length. Four marches a point (19.2, 40.86,
+  39.9999, 39.999999 m for 40 m) where five settled ratings took eleven. A model evaluation far
+  from its march settles its pressures only to a hundredth of the model's own error there.
+- **The valve's flux scan** stops once the flux has fallen twice past its largest (one maximum
+  along an isentrope): 13 isentropic states where 19 were, the same bracket and answer.
 - **Start-up**: `lhsim --help` and argument errors import neither CoolProp, pandas, matplotlib,
   SciPy nor Dask (a test checks this); importing CoolProp costs about 2.5 s per process, paid once.
 - Answers: the yields of the demos and of 72 UA points (nitrogen, argon, methane, air; three UAs,
   both kinds of production, 20 to 200 zones) agree with those before this work within 3e-9
-  relative, valve fluxes within 5e-8 (measured once with a script, 2026-12-03);
-  `tests/test_honest_solves.py` checks Newton on estimates against Brent's method on four points.
+  relative, valve fluxes within 5e-8 (measured once with a script, 2026-12-03); after the
+  rated-point work of 2026-12-04 the same 82 UA and demo points within 2e-8, the demos' valve
+  keys identical, and 24 rated points (nitrogen, argon, methane; 12, 35 and 80 m; 20 and 50
+  zones; the part-load demo's flows) within 8e-8 of their yields before it.
+  `tests/test_honest_solves.py` checks Newton on estimates against Brent's method on four UA
+  points, `tests/test_geometry.py` on four rated ones.
 
-## Not done
+## Where the time goes, and what was tried
 
-- **The 50-equivalent goal is reached at its edge, with no margin**: the medians of five rounds
-  in the runs of 2026-12-03 were 49 to 54 (single rounds 40 to 55; 177 before this work), so
-  whether a run says "yes" depends on this machine's drift of a few per cent. About two thirds
-  of a point's time is Python around the property calls: the three marches (the
-  first, fresh, takes two Newton passes a state; the second, started 1.6 kJ/kg away, two; the
-  third, one), the model and its secant steps (a dozen evaluations after the first march, whose
-  guess lies where the UA climbs steeply), and the valve's flux search (about twenty states).
-  Tried and left out, measured: a cubic Hermite estimate between marched states (starts within
-  1e-6 K, but its model evaluations cost more than the pass they saved), second derivatives of T
-  in h for the model (a better root, not good enough to save the third march), a looser final-step
-  test in Newton's method (the starts are not close enough for it to count).
-- **A geometry point is not within 3 times a UA point** (about 6 to 7 times): it went from 56 to
-  43 ms (measured back to back on 2026-12-03), with the faster marches and Newton's method on its length (`_length_steps`: five
-  ratings where eight were needed; the model freezes the conductances per metre, so the ratings
-  converge linearly, a factor of about a hundred a rating), but each rating still takes one to
-  three marches, each with the transport properties of every zone (a quarter of its time).
+- **A UA point** is now mostly its three marches (about 500 density-temperature updates: the
+  first, fresh, march takes two Newton passes a state; the second, started 1.6 kJ/kg away, two;
+  the third, one), each update with its partial derivatives and the Python around it about 5 us;
+  then the model and its secant steps (about ten evaluations), the valve (13 isentropic states)
+  and the results. Its cost in flash equivalents depends on the machine: 40 to 44 in the runs of
+  2026-12-04, where nearly the same code measured 49 to 54 on 2026-12-03, on a machine whose
+  flash took 2.2 times as long and the point 3 times. Tried and left out,
+  measured: a cubic Hermite start for the second march between the first march's states (the
+  second march then takes one pass a state, 197 updates down to 102, but the interpolation costs
+  about as much as the pass it saves: the point's time unchanged within 1 %); the two Newton loops
+  of the batch march merged into one (no change beyond the noise); inverse quadratic steps for the
+  UA model (one evaluation fewer, but near the perfect exchanger it steps off the residual's
+  curve); a looser final-step test in Newton's method (the starts are not close enough for it to
+  count); second derivatives of T in h for the model (a better root, not good enough to save the
+  third march).
+- **A rated geometry point** is four marches, each with the transport properties of every zone
+  (two fifths of a march: CoolProp's conductivity with its critical enhancement costs three
+  times a density-temperature update), and the length model's evaluations between them. Three
+  marches would need the third to meet the length to 1e-7 and its pressures to 1e-7: it comes
+  within 2.4e-6 and 3.5e-5. Tried and left out, measured: film coefficients read off the last
+  march by each stream's enthalpy (the second march 1e-3 off instead of 2e-2, the third 2.6e-7,
+  still short of 1e-7, so four marches and slower); the second march settled before its model is
+  used (the third then 1.6e-7 off: the same).
 - **Tabulated properties** (TTSE/bicubic) are left out: the march already gives HEOS answers at a
   fraction of the flash cost, and the tables' error and the crash seen when building them in the
   worker process would need their own measurement across the demos and a sweep before use.
