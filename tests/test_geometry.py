@@ -202,6 +202,17 @@ def _settled_by_plain_passes(fluid, g, wall, hot, m_hot, cold, m_cold, duty, zon
     raise AssertionError("plain passes did not settle")
 
 
+def _bench_exchanger():
+    """A bench plant's recuperator as hardware: nitrogen 200 bar, 300 K in six 4 mm tubes against
+    its return gas, saturated vapour at 1.05 bar, at 30 kg/h (94 % returning):
+    (fluid, geometry, wall, hot inlet, hot flow, cold inlet, cold flow)."""
+    n2 = get_fluid("nitrogen")
+    g = hx.TubeInTube(6, 4e-3, 6e-3, 12e-3)
+    wall = Wall(material="stainless steel 304")
+    hot, cold = n2.state_tp(300.0, 200e5), n2.saturated_vapour(1.05e5)
+    return n2, g, wall, hot, 30 / 3600, cold, 0.94 * 30 / 3600
+
+
 def test_the_linear_pressure_model_lands_on_the_fixed_point_of_the_march():
     # Nitrogen at a bench plant's flow with a 5 % return-side drop: the rated profile (linear
     # model between marches, each duty started from the last rating) against plain repeated
@@ -209,11 +220,7 @@ def test_the_linear_pressure_model_lands_on_the_fixed_point_of_the_march():
     # within 1e-6.
     import numpy as np
 
-    n2 = get_fluid("nitrogen")
-    g = hx.TubeInTube(6, 4e-3, 6e-3, 12e-3)
-    wall = Wall(material="stainless steel 304")
-    hot, cold = n2.state_tp(300.0, 200e5), n2.saturated_vapour(1.05e5)
-    m_hot, m_cold = 30 / 3600, 0.94 * 30 / 3600
+    n2, g, wall, hot, m_hot, cold, m_cold = _bench_exchanger()
     first = rate(n2, g, wall, hot, m_hot, cold, m_cold, 1.70e3, 30)
     warm = rate(n2, g, wall, hot, m_hot, cold, m_cold, 1.71e3, 30, start=first)
     cold_start = rate(n2, g, wall, hot, m_hot, cold, m_cold, 1.71e3, 30)
@@ -255,11 +262,7 @@ def test_a_rough_rating_marches_once_and_a_settled_one_from_it_lands_on_the_answ
     # a rating from scratch (pressures within 1e-7 of each inlet pressure, length 1e-9).
     import numpy as np
 
-    n2 = get_fluid("nitrogen")
-    g = hx.TubeInTube(6, 4e-3, 6e-3, 12e-3)
-    wall = Wall(material="stainless steel 304")
-    hot, cold = n2.state_tp(300.0, 200e5), n2.saturated_vapour(1.05e5)
-    m_hot, m_cold = 30 / 3600, 0.94 * 30 / 3600
+    n2, g, wall, hot, m_hot, cold, m_cold = _bench_exchanger()
     warm = rate(n2, g, wall, hot, m_hot, cold, m_cold, 1.71e3, 30)
     fresh = rate(n2, g, wall, hot, m_hot, cold, m_cold, 1.72e3, 30)
     rough = rate(n2, g, wall, hot, m_hot, cold, m_cold, 1.72e3, 30, start=warm, rtol=math.inf)
@@ -280,11 +283,7 @@ def test_the_length_model_moves_the_conductances_along_their_secant():
 
     from cycle.tube_exchanger import estimated_length
 
-    n2 = get_fluid("nitrogen")
-    g = hx.TubeInTube(6, 4e-3, 6e-3, 12e-3)
-    wall = Wall(material="stainless steel 304")
-    hot, cold = n2.state_tp(300.0, 200e5), n2.saturated_vapour(1.05e5)
-    m_hot, m_cold = 30 / 3600, 0.94 * 30 / 3600
+    n2, g, wall, hot, m_hot, cold, m_cold = _bench_exchanger()
     first = rate(n2, g, wall, hot, m_hot, cold, m_cold, 1.70e3, 30)
     warm = rate(n2, g, wall, hot, m_hot, cold, m_cold, 1.71e3, 30, start=first)
     there = rate(n2, g, wall, hot, m_hot, cold, m_cold, 1.72e3, 30).length

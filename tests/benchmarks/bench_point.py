@@ -75,6 +75,51 @@ def flash_time(result):
     return t / len(states)
 
 
+def stage_times(data, runs, wrapped):
+    """Mean time per solve of ``data`` spent inside each of the ``wrapped`` functions, (owner,
+    name, label), over ``runs`` solves, with "whole" the mean time of a solve: a dict by label."""
+    spent_in = {label: 0.0 for _, _, label in wrapped}
+    saved = []
+    for owner, name, label in wrapped:
+        inner = getattr(owner, name)
+
+        def timed_call(*a, _inner=inner, _label=label, **k):
+            start = time.perf_counter()
+            try:
+                return _inner(*a, **k)
+            finally:
+                spent_in[_label] += time.perf_counter() - start
+
+        saved.append((owner, name, inner))
+        setattr(owner, name, timed_call)
+    try:
+        start = time.perf_counter()
+        for _ in range(runs):
+            solve_point(data)
+        whole = time.perf_counter() - start
+    finally:
+        for owner, name, inner in saved:
+            setattr(owner, name, inner)
+    out = {label: t / runs for label, t in spent_in.items()}
+    out["whole"], out["runs"] = whole / runs, runs
+    return out
+
+
+def stage_table(say, what, spent, stages, rest):
+    """Say a table of ``stages`` (label -> mean time [s]), the rest of ``spent["whole"]`` as ``rest``."""
+    whole = spent["whole"]
+    stages = dict(stages)
+    stages[rest] = whole - sum(stages.values())
+    say()
+    say(f"Where {what}'s time goes by stage ({spent['runs']} runs timed with the stages wrapped: "
+        f"{whole * 1e3:.2f} ms a point):")
+    say()
+    say("| stage | time | share |")
+    say("|---|---|---|")
+    for label, t in stages.items():
+        say(f"| {label} | {t * 1e3:.2f} ms | {100 * t / whole:.0f} % |")
+
+
 def unit_costs(fluid_name):
     state = CoolProp.AbstractState("HEOS", fluid_name)
     state.update(CP.PT_INPUTS, 1e5, 300.0)
@@ -260,74 +305,28 @@ def main():
     import cycle.equipment as equipment
     import cycle.flowsheet as flowsheet
     import cycle.orifice as orifice
-
-    spent_in = {}
-
-    def timing(owner, name, label):
-        inner = getattr(owner, name)
-
-        def timed_call(*a, **k):
-            start = time.perf_counter()
-            try:
-                return inner(*a, **k)
-            finally:
-                spent_in[label] = spent_in.get(label, 0.0) + time.perf_counter() - start
-
-        setattr(owner, name, timed_call)
-        return inner
-
-    saved = [(equipment.Recuperator, "profile", timing(equipment.Recuperator, "profile", "marches")),
-             (flowsheet, "_steps_on_estimates", timing(flowsheet, "_steps_on_estimates", "steps")),
-             (orifice, "size_valve", timing(orifice, "size_valve", "valve sizing"))]
-    runs = 5 * repeat
-    start = time.perf_counter()
-    for _ in range(runs):
-        solve_point(POINT)
-    whole = (time.perf_counter() - start) / runs
-    for owner, name, inner in saved:
-        setattr(owner, name, inner)
-    stages = {"recuperator marches (3 a point, both sides)": spent_in["marches"] / runs,
-              "Newton steps on estimated profiles (models and their evaluations)":
-                  (spent_in["steps"] - spent_in["marches"]) / runs,
-              "valve sizing (HEM critical flux)": spent_in["valve sizing"] / runs}
-    stages["the rest (states, compressor, exergy, results)"] = whole - sum(stages.values())
-    say()
-    say(f"Where one point's time goes by stage ({runs} runs timed with the stages wrapped: {whole * 1e3:.2f} ms a point):")
-    say()
-    say("| stage | time | share |")
-    say("|---|---|---|")
-    for label, t in stages.items():
-        say(f"| {label} | {t * 1e3:.2f} ms | {100 * t / whole:.0f} % |")
-
-    # The same for the rated geometry point: its marches (of which the zones' transport
-    # properties), the length model's evaluations between them, the rest.
     import cycle.tube_exchanger as tube_exchanger
     from properties.fluid import Fluid
 
-    spent_in.clear()
-    saved = [(tube_exchanger, "rate", timing(tube_exchanger, "rate", "ratings")),
-             (Fluid, "transport_td", timing(Fluid, "transport_td", "transport")),
-             (tube_exchanger, "estimated_length", timing(tube_exchanger, "estimated_length", "model"))]
-    runs = 2 * repeat
-    start = time.perf_counter()
-    for _ in range(runs):
-        solve_point(geometry)
-    whole = (time.perf_counter() - start) / runs
-    for owner, name, inner in saved:
-        setattr(owner, name, inner)
-    stages = {f"marches ({rated.solve.function_calls} a point: both streams, correlations, pressures), "
-              f"less their transport properties": (spent_in["ratings"] - spent_in["transport"]) / runs,
-              "transport properties of every zone (one density-temperature update each)": spent_in["transport"] / runs,
-              "length model evaluations between the marches (no property call)": spent_in["model"] / runs}
-    stages["the rest (first duty, states, valve, exergy, results)"] = whole - sum(stages.values())
-    say()
-    say(f"Where the rated geometry point's time goes ({runs} runs timed with the stages wrapped: "
-        f"{whole * 1e3:.2f} ms a point):")
-    say()
-    say("| stage | time | share |")
-    say("|---|---|---|")
-    for label, t in stages.items():
-        say(f"| {label} | {t * 1e3:.2f} ms | {100 * t / whole:.0f} % |")
+    spent = stage_times(POINT, 5 * repeat, [(equipment.Recuperator, "profile", "marches"),
+                                            (flowsheet, "_steps_on_estimates", "steps"),
+                                            (orifice, "size_valve", "valve sizing")])
+    stage_table(say, "one point", spent, {
+        "recuperator marches (3 a point, both sides)": spent["marches"],
+        "Newton steps on estimated profiles (models and their evaluations)": spent["steps"] - spent["marches"],
+        "valve sizing (HEM critical flux)": spent["valve sizing"]}, "the rest (states, compressor, exergy, results)")
+
+    # The same for the rated geometry point: its marches (of which the zones' transport
+    # properties), the length model's evaluations between them, the rest.
+    spent = stage_times(geometry, 2 * repeat, [(tube_exchanger, "rate", "ratings"),
+                                               (Fluid, "transport_td", "transport"),
+                                               (tube_exchanger, "estimated_length", "model")])
+    stage_table(say, "the rated geometry point", spent, {
+        f"marches ({rated.solve.function_calls} a point: both streams, correlations, pressures), less their "
+        f"transport properties": spent["ratings"] - spent["transport"],
+        "transport properties of every zone (one density-temperature update each)": spent["transport"],
+        "length model evaluations between the marches (no property call)": spent["model"]},
+        "the rest (first duty, states, valve, exergy, results)")
 
     if args.write:
         head = (f"# Performance\n\nMeasured by `python tests/benchmarks/bench_point.py --write {args.write}` on "
