@@ -289,9 +289,8 @@ def estimated_length(rated, geometry, hot_in, hot_flow, cold_in, cold_flow, duty
 def _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, passes=40, lengths=False, rtol=0.1 * PRESSURE_RTOL):
     """Boundary pressures at enthalpies ``h_hot``, ``h_cold`` on the linear model of the march
     ``base``, iterated until they settle (to ``rtol`` of the inlet pressures, by default a tenth
-    of :data:`PRESSURE_RTOL`); and the states'
-    temperatures and densities there, as the next march's starting guesses (with ``lengths``,
-    also the zones' lengths on the model [m]).
+    of :data:`PRESSURE_RTOL`); and the states' temperatures and densities there, as the next
+    march's starting guesses (with ``lengths``, also the zones' lengths on the model [m]).
 
     The two streams are one (2, zones + 1) array (row 0 the hot stream) so that a settling pass
     costs a few NumPy operations; its arithmetic is that of :func:`_new_pressures`.
@@ -317,7 +316,8 @@ def _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, passes=40, lengths=Fal
     # the sum of a zone's two boundary volumes.
     friction = 0.5 * np.stack([base.friction_hot * (G[0] / base.G[0]) ** 2,
                                base.friction_cold * (G[1] / base.G[1]) ** 2])
-    # Acceleration: G^2 (v_warm - v_cold) on the hot stream, G^2 (v_warm - v_cold) against the cold.
+    # Acceleration: G^2 (v_out - v_in) of each stream, (v_cold - v_warm) for the hot one flowing to
+    # the cold end, (v_warm - v_cold) for the return gas.
     accel = np.array([[G[0] ** 2], [-G[1] ** 2]])
     p_in = np.array([[hot_in.p], [cold_in.p]])
     tol = rtol * p_in
@@ -334,12 +334,7 @@ def _estimate(base, h_hot, h_cold, q, G, hot_in, cold_in, passes=40, lengths=Fal
         a, b = gap[1:], gap[:-1]
         if a.min() <= 0 or b.min() <= 0:
             break
-        d = a - b
-        if (np.abs(d) <= 1e-6 * np.maximum(a, b)).any():
-            lmtd = _lmtd(a, b)
-        else:  # _lmtd's usual case, inline
-            lmtd = d / np.log(a / b)
-        zone_lengths = metres_per_kelvin / lmtd
+        zone_lengths = metres_per_kelvin / _lmtd(a, b)
         v = 1.0 / r
         drop = friction * zone_lengths * (v[:, :-1] + v[:, 1:]) + accel * (v[:, :-1] - v[:, 1:])
         np.cumsum(drop, axis=1, out=cumulative[:, 1:])
