@@ -143,6 +143,7 @@ class Section:
 
     def __post_init__(self):
         self._profiles = {}
+        self.collapsed = []  # duties at which a rated exchanger's pressures would collapse
 
     def profile(self, duty, rough=False):
         """The march at ``duty`` (remembered: a root finder asks for the same duty again);
@@ -329,6 +330,13 @@ def solve_section(section, flow_of=None, lowest_duty=0.0, xtol=None, maxiter=200
     elif mode == "length":
         target, unit = spec.geometry.length, "m"
         duty, root, achieved, tol = _solve_length(section, lowest_duty, Q_hi, tol, maxiter)
+        if target - achieved > SIZING_TOLERANCE["length"] * target and any(d > duty for d in section.collapsed):
+            # The length needed stops short of the one given where the friction takes the pressures
+            # down: the passages cannot carry this flow over that length.
+            raise ScenarioError(
+                f"{key}.geometry: the passages cannot carry this flow over {target:g} m: beyond about "
+                f"{achieved:.4g} m a pressure would fall below 5 % of its inlet value along the exchanger (the "
+                f"friction is far too high); use wider or more tubes, or a shorter exchanger")
     else:
         target, unit = spec.ua, "W/K"
         duty, root, achieved = _solve_ua(section, flow_of, lowest_duty, Q_hi, tol, maxiter)
@@ -687,6 +695,7 @@ def _solve_length(section, lowest_duty, Q_hi, tol, maxiter):
         try:
             prof = section.profile(duty, rough=rough)
         except PressureCollapseError:
+            section.collapsed.append(duty)
             return math.inf
         if prof.min_approach <= TOUCH_APPROACH:
             return math.inf

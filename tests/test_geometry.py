@@ -314,3 +314,18 @@ def test_a_rated_exchanger_too_short_for_any_liquid_names_its_length():
                                                  r"this production: it needs 15\.\d+ m to reach the critical "
                                                  r"effectiveness 0\.87\d\d .*; lengthen it"):
         solve_scenario(parse_scenario(data))
+
+
+def test_a_rated_exchanger_whose_friction_collapses_the_pressure_first_says_so():
+    # 100 kg/h through six 4 mm tubes: the length needed climbs to about 11.35 m, beyond which a
+    # pressure would fall below 5 % of its inlet value.  A 12 or 20 m exchanger cannot carry the
+    # flow: a one-line error saying why (it came out as a missed solve that named only the length).
+    for length in ("12 m", "20 m"):
+        data = bench({"zones": 20, "geometry": dict(copy.deepcopy(GEOMETRY), length=length)},
+                     production={"compressor_flow": "100 kg/h"})
+        with pytest.raises(ScenarioError, match=rf"recuperator\.geometry: the passages cannot carry this flow over "
+                                                rf"{length}: beyond about 11\.\d+ m a pressure would fall below 5 %"):
+            solve_scenario(parse_scenario(data))
+    data = bench({"zones": 20, "geometry": dict(copy.deepcopy(GEOMETRY), length="11 m")},
+                 production={"compressor_flow": "100 kg/h"})
+    assert solve_scenario(parse_scenario(data)).solve.converged
